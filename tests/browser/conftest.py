@@ -14,7 +14,7 @@ Fixtures
     network). Uncaught JavaScript errors (``pageerror`` events) are collected
     in ``page.kit_page_errors``; the test errors at teardown if there are any.
     When the test body fails, a full-page screenshot is written to
-    ``test-artifacts/<test name>-failure.png``.
+    ``test-artifacts/<test id>-failure.png``.
 ``voila_app`` (function)
     A factory: ``base_url = voila_app(notebook_path)`` starts Voila on
     127.0.0.1 with a free port, in its own process group, with the isolated
@@ -153,7 +153,7 @@ def wait_canvas_change(
 
 
 def _safe_name(nodeid: str) -> str:
-    return re.sub(r"[^A-Za-z0-9_.-]+", "_", nodeid.split("::", 1)[-1])[:120]
+    return re.sub(r"[^A-Za-z0-9_.-]+", "_", nodeid)[-150:]
 
 
 @pytest.hookimpl(hookwrapper=True)
@@ -208,7 +208,8 @@ def page(browser, request, artifacts_dir: Path):
             except Exception as exc:  # the page may be gone; keep the real failure
                 sys.stderr.write(f"could not save {shot}: {exc}\n")
         context.close()
-    assert not errors, f"uncaught JavaScript errors in the page: {errors}"
+    if errors:
+        pytest.fail(f"uncaught JavaScript errors in the page: {errors}", pytrace=False)
 
 
 def _free_port() -> int:
