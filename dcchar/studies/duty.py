@@ -236,7 +236,7 @@ def rms(cycle: DutyCycle, quantity: str = "torque", *, rest_weight: float = 1.0,
     References
     ----------
     .. [1] G. K. Dubey, Fundamentals of Electrical Drives, 2nd ed. New Delhi, India: Narosa, 2001,
-       sec. 4.3, Ex. 4.3.
+       ch. 4, Ex. 4.3, p. 53.
 
     Examples
     --------
@@ -249,7 +249,11 @@ def rms(cycle: DutyCycle, quantity: str = "torque", *, rest_weight: float = 1.0,
     a, b = cycle.profile(quantity)
     dt = cycle.durations
     w = _weights(cycle, beta, gamma)
-    return float(math.sqrt(np.dot(_mean_square(a, b), dt) / np.dot(w, dt)))
+    scale = max(np.abs(a).max(), np.abs(b).max())  # scaled so that squares neither underflow nor overflow
+    if scale == 0:
+        return 0.0
+    a, b = a / scale, b / scale
+    return float(scale * math.sqrt(np.dot(_mean_square(a, b), dt) / np.dot(w, dt)))
 
 
 def mean_absolute(cycle: DutyCycle, quantity: str = "torque") -> float:
@@ -394,7 +398,7 @@ def equivalent_continuous_rating(cycle: DutyCycle, quantity: str = "power", *, r
     References
     ----------
     .. [1] G. K. Dubey, Fundamentals of Electrical Drives, 2nd ed. New Delhi, India: Narosa, 2001,
-       sec. 4.3, Ex. 4.3.
+       ch. 4, Ex. 4.3, p. 53.
     """
     limit = positive("overload_limit", overload_limit)
     r = rms(cycle, quantity, rest_weight=rest_weight, transient_weight=transient_weight)
