@@ -29,8 +29,10 @@ Limits
   growth with the variable in the exponent use ``exp(...)``;
 - every sub-expression free of the variable is a constant; it is computed on the spot and must be
   a finite real number of magnitude at most 1e300 (so ``log(-1)``, ``1/0``, ``sqrt(-4)`` and
-  ``exp(1000)`` are rejected where they stand). Together these limits bound the work and memory of
-  any accepted text.
+  ``exp(1000)`` are rejected where they stand). Constants are computed with Python floats and
+  :mod:`math`, operand by operand; a sub-expression in which sympy cancels the variable (``n - n``,
+  ``0*n``) becomes a constant too, its value taken from sympy, so ``1/(n - n)`` is a division by
+  zero. Together these limits bound the work and memory of any accepted text.
 
 Characters: the text must be ASCII, except that the Unicode minus sign U+2212 (as pasted from
 documents) is read as ``-``. Any other non-ASCII character is rejected at its position (this also
@@ -264,6 +266,19 @@ class _Builder:
 
     # -- tree walk --------------------------------------------------------------------------
     def build(self, node, depth):
+        expr, value = self._build(node, depth)
+        if value is None and not expr.free_symbols:
+            # the variable cancelled (n - n, 0*n): the result is a constant like any other
+            try:
+                z = complex(expr.evalf())
+            except (TypeError, ValueError, OverflowError):
+                self.fail("sub-expression has no finite real value", node)
+            if z.imag != 0:
+                self.fail("sub-expression has no real value", node)
+            value = self.constant(z.real, node)
+        return expr, value
+
+    def _build(self, node, depth):
         if depth > MAX_DEPTH:
             self.fail(f"formula nested too deeply (more than {MAX_DEPTH} levels)", node)
         sp = self.sympy
