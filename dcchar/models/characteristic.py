@@ -199,8 +199,8 @@ def _no_load(machine, voltage) -> NoLoadPoint:
     good = np.isfinite(t)
     if good.any() and t[good][0] > 0:
         # no loss holds the speed: the limit I_a -> 0+
-        k = st["kphi"][0]
-        speed = math.inf if not k > 0 else float(st["speed"][0])
+        k0 = machine.state_arrays(voltage, np.zeros(1))["kphi"][0]  # flux at exactly zero current
+        speed = math.inf if not k0 > 0 else float(st["speed"][0])
         return NoLoadPoint(0.0, speed, float(st["supply_current"][0] - grid[0]))
     idx = np.nonzero(good[:-1] & good[1:] & (t[:-1] <= 0) & (t[1:] > 0))[0]
     if idx.size == 0:

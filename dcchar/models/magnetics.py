@@ -203,7 +203,6 @@ class TabulatedMagnetization(Magnetization):
         from scipy.interpolate import PchipInterpolator
 
         self._pchip = PchipInterpolator(F, E - E[0], extrapolate=False)
-        self._pchip_inv = PchipInterpolator(E - E[0], F, extrapolate=False)
         self._last_slope = (E[-1] - E[-2]) / (F[-1] - F[-2])
         self._F_end = F[-1]
         self._e_end = E[-1] - E[0]
@@ -214,8 +213,20 @@ class TabulatedMagnetization(Magnetization):
         return np.where(inside, y, self._e_end + self._last_slope * (F - self._F_end))
 
     def _f_inverse(self, e):
+        # exact inverse of the forward interpolant: bisection within the bracketing segment
+        # (55 halvings reach the float resolution of the segment width); used off the hot path
         inside = e <= self._e_end
-        x = self._pchip_inv(np.where(inside, e, self._e_end))
+        target = np.where(inside, e, self._e_end)
+        E0 = self.points_emf - self.points_emf[0]
+        k = np.clip(np.searchsorted(E0, target, side="right") - 1, 0, E0.size - 2)
+        lo = self.points_excitation[k].astype(float)
+        hi = self.points_excitation[k + 1].astype(float)
+        for _ in range(55):
+            mid = 0.5 * (lo + hi)
+            below = self._pchip(mid) < target
+            lo = np.where(below, mid, lo)
+            hi = np.where(below, hi, mid)
+        x = 0.5 * (lo + hi)
         return np.where(inside, x, self._F_end + (e - self._e_end) / self._last_slope)
 
     def __eq__(self, other):
