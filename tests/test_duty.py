@@ -63,6 +63,12 @@ def test_energy_dubey_data(dubey_ex_4_3):
     assert_allclose([e.drawn, e.returned, e.net], [210e6, 96e6, 114e6], rtol=1e-12)
 
 
+def test_energy_linear_ramp_through_zero():
+    # power ramps -100 W -> 300 W over 4 s: zero at 1 s; drawn = 300*3/2 = 450 J, returned = 100*1/2 = 50 J
+    e = energy(DutyCycle([DutySegment(4.0, power=(-100.0, 300.0)), DutySegment(2.0, power=(50.0, -50.0))]))
+    assert_allclose([e.drawn, e.returned], [450.0 + 25.0, 50.0 + 25.0], rtol=1e-14)
+
+
 def test_energy_torque_speed_against_quad():
     from scipy.integrate import quad
 

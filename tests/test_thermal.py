@@ -98,10 +98,14 @@ def test_peak_inside_a_ramp():
     assert tr.peak_rise > tr.rise.max()
 
 
-def test_blocks_match_plain_recursion():
+@pytest.mark.parametrize("dt_max", [500.0, 5e4])
+def test_runs_match_plain_recursion(dt_max):
+    # the vectorized scan splits the sequence into runs of <= 600 time constants and steps very
+    # long segments directly: compare with the plain step-by-step recursion
     rng = np.random.default_rng(3)  # regression, not published: data drawn at random
-    n = 1000  # more than one block of the vectorized scan
-    dt = rng.uniform(1.0, 500.0, n)
+    n = 1000
+    dt = rng.uniform(1.0, dt_max, n)
+    dt[::97] = 1.2e6  # single segments of 400 to 1000 time constants
     p = rng.uniform(0.0, 3000.0, n)
     still = rng.random(n) < 0.3
     m = FirstOrderThermal(0.02, 1200.0, 3000.0)

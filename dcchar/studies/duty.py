@@ -123,11 +123,17 @@ class DutyCycle:
             if not isinstance(s, DutySegment):
                 raise ParameterError(f"segments[{i}]", s, "a DutySegment")
         object.__setattr__(self, "segments", segs)
+        object.__setattr__(self, "_cache", {})
 
     @property
     def durations(self) -> np.ndarray:
-        """Segment durations. [s]"""
-        return np.array([s.duration for s in self.segments])
+        """Segment durations (read-only array). [s]"""
+        d = self._cache.get("_durations")
+        if d is None:
+            d = np.array([s.duration for s in self.segments])
+            d.flags.writeable = False
+            self._cache["_durations"] = d
+        return d
 
     @property
     def cycle_time(self) -> float:
@@ -149,10 +155,14 @@ class DutyCycle:
         return all(getattr(s, quantity) is not None or s.kind == "rest" for s in self.segments)
 
     def profile(self, quantity: str) -> tuple[np.ndarray, np.ndarray]:
-        """Start and end values of ``quantity`` in each segment (linear in between). [unit of quantity]
+        """Start and end values of ``quantity`` in each segment (linear in between), as read-only
+        arrays computed once per cycle. [unit of quantity]
 
         Raises ParameterError naming the first segment that does not give it (rest counts as 0).
         """
+        cached = self._cache.get(quantity)
+        if cached is not None:
+            return cached
         choice("quantity", quantity, tuple(QUANTITIES))
         n = len(self.segments)
         start, end = np.zeros(n), np.zeros(n)
@@ -180,6 +190,9 @@ class DutyCycle:
                     start[i] = 0.0
             else:
                 start[i] = v
+        start.flags.writeable = False
+        end.flags.writeable = False
+        self._cache[quantity] = (start, end)
         return start, end
 
 
@@ -293,6 +306,14 @@ class EnergySummary:
 
 def _split_positive_negative(c0, c1, c2, dt):
     """Integrals over [0, dt] of the positive and negative parts of c0 + c1*s + c2*s^2, s in [0, 1]."""
+    if not np.any(c2):  # linear: closed form, split at the zero crossing
+        a, b = c0, c0 + c1
+        with np.errstate(divide="ignore", invalid="ignore"):
+            cross = np.maximum(a, b) ** 2 / (2.0 * np.abs(b - a))
+            cross_neg = np.minimum(a, b) ** 2 / (2.0 * np.abs(b - a))
+        pos = np.where((a >= 0) & (b >= 0), (a + b) / 2, np.where((a <= 0) & (b <= 0), 0.0, cross))
+        neg = np.where((a <= 0) & (b <= 0), -(a + b) / 2, np.where((a >= 0) & (b >= 0), 0.0, cross_neg))
+        return float(np.dot(pos, dt)), float(np.dot(neg, dt))
     n = c0.size
     pts = np.tile(np.array([0.0, 1.0, 1.0, 1.0]), (n, 1))
     with np.errstate(divide="ignore", invalid="ignore"):

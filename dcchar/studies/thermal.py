@@ -26,7 +26,7 @@ __all__ = [
     "short_time_rating_factor", "intermittent_rating_factor", "insulation_class",
 ]
 
-_BLOCK = 256  # segments per block of the vectorized recursion (keeps the matrix small)
+_SPAN = 600.0  # largest summed dt/tau in one cumulative-sum run (exp(600) ~ 4e260 < float max)
 
 
 @dataclass(frozen=True)
@@ -123,19 +123,28 @@ def _affine(dt, tau, s0, s1):
 
 
 def _scan(x, b, theta0):
-    """theta_k for theta_(k+1) = exp(-x_k)*theta_k + b_k, vectorized in blocks via log-space sums."""
+    """theta_k for theta_(k+1) = exp(-x_k)*theta_k + b_k, vectorized with cumulative sums.
+
+    Within a run of segments whose summed dt/tau stays below ``_SPAN`` the recursion is
+    theta_k = exp(-L_k)*(theta_0 + sum_(j<k) exp(L_(j+1))*b_j), L_k = sum_(i<k) x_i, evaluated with
+    one cumsum; a new run starts before exp(L) could overflow, and a segment longer than ``_SPAN``
+    time constants on its own is stepped directly.
+    """
     n = x.size
     out = np.empty(n + 1)
     out[0] = theta0
-    for start in range(0, n, _BLOCK):
-        xs, bs = x[start:start + _BLOCK], b[start:start + _BLOCK]
-        m = xs.size
-        cum = np.concatenate(([0.0], np.cumsum(xs)))  # cum[k] = sum_{i<k} x_i
-        # M[k-1, j] = exp(-(cum[k] - cum[j+1])) for j < k, k = 1..m
-        d = cum[1:, None] - cum[None, 1:]
-        mask = np.tri(m, dtype=bool)
-        mat = np.where(mask, np.exp(-np.where(mask, d, 0.0)), 0.0)
-        out[start + 1:start + m + 1] = np.exp(-cum[1:]) * out[start] + mat @ bs
+    cum = np.concatenate(([0.0], np.cumsum(x)))
+    start = 0
+    while start < n:
+        base = cum[start]
+        end = int(np.searchsorted(cum, base + _SPAN, side="right")) - 1
+        if end <= start:  # one very long segment
+            out[start + 1] = math.exp(-x[start]) * out[start] + b[start]
+            start += 1
+            continue
+        rel = cum[start + 1:end + 1] - base
+        out[start + 1:end + 1] = np.exp(-rel) * (out[start] + np.cumsum(np.exp(rel) * b[start:end]))
+        start = end
     return out
 
 
