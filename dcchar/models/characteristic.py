@@ -90,7 +90,7 @@ class Characteristic:
     def from_state(cls, machine, voltage, current, safe_speed, state) -> "Characteristic":
         p_in = state["input_power"]
         p_out = state["output_power"]
-        with np.errstate(divide="ignore", invalid="ignore"):
+        with np.errstate(all="ignore"):
             eff = np.where((p_in > 0) & (p_out > 0), p_out / p_in,
                            np.where((p_in < 0) & (p_out < 0), p_in / p_out, np.nan))
             w = state["speed"]

@@ -233,12 +233,16 @@ class Machine:
             Far = self.armature_reaction.excitation(Ia)
             F, If, Is, IL = symbolic.excitation_kernel(conn)(Ia, voltage, *circuit, Far)
         kphi = self._kphi(F, Ia)
-        with np.errstate(divide="ignore", invalid="ignore"):
+        with np.errstate(all="ignore"):
             values = symbolic.output_kernel(conn)(Ia, kphi, voltage, *circuit, *self._loss_parameters())
-        out = dict(zip(symbolic.OUTPUTS, (np.broadcast_to(v, Ia.shape) for v in values)))
-        out.update(excitation=np.broadcast_to(F, Ia.shape), field_current=np.broadcast_to(If, Ia.shape),
-                   series_field_current=np.broadcast_to(Is, Ia.shape),
-                   supply_current=np.broadcast_to(IL, Ia.shape), kphi=np.broadcast_to(kphi, Ia.shape))
+        shape = Ia.shape
+
+        def full(v):  # constants (e.g. a zero loss term) come back as scalars
+            return v if np.shape(v) == shape else np.full(shape, v, dtype=float)
+
+        out = dict(zip(symbolic.OUTPUTS, map(full, values)))
+        out.update(excitation=full(F), field_current=full(If), series_field_current=full(Is),
+                   supply_current=full(IL), kphi=full(kphi))
         return out
 
     def scalar_state(self, voltage: float, current: float) -> tuple[float, float]:
