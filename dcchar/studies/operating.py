@@ -553,8 +553,6 @@ def operating_points(machine, load, voltage=None, *, grid: int = 112, method: st
     if not i0 > 0:
         return OperatingResult(machine, load, V, ws, (), None, "cannot start",
                                f"the supply voltage {V:g} V does not exceed the brush drop", 0.0, breakaway)
-    w0p, t_start = speed_torque(i0 * (1 - _TINY))
-    f_start = t_start - float(load_torque(w0p))
     x, jumps = _unit_grid(int(grid))
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         w, t = ev.speed_torque(x * i0)
@@ -562,6 +560,8 @@ def operating_points(machine, load, voltage=None, *, grid: int = 112, method: st
         inside = np.isfinite(w) & (np.abs(w) <= ws)
         valid = inside & np.isfinite(f)
         hx, hf, hv = _hidden_pairs(ev, load, x, f, valid, jumps, i0, ws)
+    # the nodes either side of standstill (x = 1 -/+ tiny): torque as the rotor begins to turn
+    t_start, f_start, f_back = float(t[jumps[1]]), float(f[jumps[1]]), float(f[jumps[1] + 1])
     if hx.size:
         order = np.argsort(np.concatenate([x, hx]), kind="stable")
         xs = np.concatenate([x, hx])[order]
@@ -594,7 +594,7 @@ def operating_points(machine, load, voltage=None, *, grid: int = 112, method: st
     for r, rr, res in sorted(roots, key=lambda z: z[0]):
         pts[r] = _make_point(machine, load, r, i0, t_start, breakaway, ws, rr, res, speed_torque, full)
     # the runaway region on the grid (reported, never searched), and the settling path from standstill
-    point, reason, detail = _settle(xs, vs, i0, pts, t_start, breakaway, f_start, fs, ws)
+    point, reason, detail = _settle(xs, vs, i0, pts, t_start, breakaway, f_start, f_back, ws)
     if point is not None and reason is None and point.output_power < 0:
         reason = "generating"
         detail = (f"mechanical power {-point.output_power:.4g} W flows into the shaft at "
@@ -614,7 +614,7 @@ def _intervals(currents, mask):
     return tuple((float(currents[a]), float(currents[b])) for a, b in zip(first, last))
 
 
-def _settle(xs, valid, i0, pts, t_start, breakaway, f_start, fs, ws):
+def _settle(xs, valid, i0, pts, t_start, breakaway, f_start, f_back, ws):
     """The point met from rest, or None with the reason (``xs``: grid of I_a/I_0)."""
     roots = sorted(pts)
     bad = xs[~valid]
@@ -625,20 +625,24 @@ def _settle(xs, valid, i0, pts, t_start, breakaway, f_start, fs, ws):
         cand = [r for r in roots if limit < r < i0]
         if cand:
             return pts[cand[-1]], None, ""
-        lim = "the safe speed" if math.isfinite(ws) else "any bound"
-        return None, "runs away", (f"the motor torque exceeds the load torque up to {lim}"
-                                   + (f" ({ws / RPM:.0f} r/min)" if math.isfinite(ws) else ""))
-    if fs(i0 * (1 + _TINY)) < 0:
-        # the load drives the rotor backward
+        lim = f"the safe speed ({ws / RPM:.0f} r/min)" if math.isfinite(ws) else "any bound"
+        return None, "runs away", f"the motor torque exceeds the load torque up to {lim}"
+    if f_back < 0:
+        # the rotor is driven backward: by the load, or by the motor's own reversed torque
         bad = bad[bad > 1.0]
         limit = bad.min() * i0 if bad.size else math.inf
         cand = [r for r in roots if i0 < r < limit]
-        lead = (f"the load torque exceeds the locked-rotor torque {t_start:.4g} N*m and drives the "
-                "motor backward")
+        if t_start < 0:
+            lead = (f"the locked-rotor torque is negative ({t_start:.4g} N*m: the field reverses at "
+                    "standstill) and the motor starts backward")
+        else:
+            lead = (f"the load torque exceeds the locked-rotor torque {t_start:.4g} N*m and drives the "
+                    "motor backward")
         if cand:
             p = pts[cand[0]]
-            return p, "generating", f"{lead}; it settles at {p.speed_rpm:.1f} r/min ({p.mode})"
-        return None, "runs away", f"{lead} beyond the safe speed or the model's range"
+            return p, "generating" if p.output_power < 0 else "cannot start", \
+                f"{lead}; it settles at {p.speed_rpm:.1f} r/min ({p.mode})"
+        return None, "runs away", f"{lead}, with no point within the safe speed or the model's range"
     return None, "cannot start", (f"the load's breakaway torque {breakaway:.4g} N*m is not below the "
                                   f"locked-rotor torque {t_start:.4g} N*m")
 
