@@ -70,11 +70,18 @@ def main(argv=None) -> int:
     machines = list(machines.values()) if isinstance(machines, dict) else list(machines)
     from dcchar.models.loads import Fan
 
-    load = Fan(rated_speed=1500 * RPM, rated_torque=60.0, static_torque=3.0)  # invented duty point
-    # the sweep covers the working range, up to about twice the load's current, not standstill
-    curves = [m.characteristic(VOLTAGE, current=np.linspace(0.0, 120.0, 400)) for m in machines]
+    rating = getattr(machines[0], "rating", None)
+    if rating is not None:  # the demo family: its rated point sets the supply, the sweep and the fan
+        voltage, top = rating.voltage, 2.2 * rating.current
+        # a fan taking 80 % of the rated torque at rated speed: each connection meets it elsewhere
+        load = Fan(rated_speed=rating.speed, rated_torque=0.8 * rating.torque, static_torque=0.04 * rating.torque)
+    else:  # invented machines, about 11 kW at 220 V and 1500 r/min
+        voltage, top = VOLTAGE, 120.0
+        load = Fan(rated_speed=1500 * RPM, rated_torque=60.0, static_torque=3.0)
+    # the sweep covers the working range (about twice the load's current), not standstill
+    curves = [m.characteristic(voltage, current=np.linspace(0.0, top, 400)) for m in machines]
     operating = _optional("dcchar.studies.operating")
-    results = [operating.operating_points(m, load, VOLTAGE) for m in machines] if operating else None
+    results = [operating.operating_points(m, load, voltage) for m in machines] if operating else None
     if results is None:
         print("dcchar.studies.operating is not available: drawing without operating points")
 
@@ -82,7 +89,7 @@ def main(argv=None) -> int:
     for view in charts.VIEWS:
         art = charts.draw_view(view, curves, load, results, units=args.units)
         charts.title_block(art["figure"], "Fan drive: choice of field connection",
-                           f"invented scenario, {VOLTAGE:g} V supply")
+                           f"invented scenario, {voltage:g} V supply")
         bad = charts.clipped_texts(art["figure"])
         if bad:
             print(f"{view}: parts outside the figure: {bad}", file=sys.stderr)

@@ -48,7 +48,7 @@ from .style import LOAD_STYLE, chart_style, new_figure, styles_for
 __all__ = [
     "VIEWS", "ViewSpec", "draw_view", "torque_speed_chart", "current_torque_chart", "speed_current_chart",
     "efficiency_torque_chart", "efficiency_power_chart", "view_xy", "point_xy", "point_label", "load_xy",
-    "axis_limits", "lowest_safe_speed", "as_list", "pair_operating", "place_labels", "load_label",
+    "axis_limits", "lowest_safe_speed", "as_list", "pair_operating", "place_labels", "load_label", "merge_labels",
 ]
 
 
@@ -424,6 +424,26 @@ def place_labels(ax, anchors, texts=None, fontsize: float = 6.0, top=None) -> li
 
 
 # ---------------------------------------------------------------- drawing
+def merge_labels(anchors, texts, decimals: int = 6) -> tuple:
+    """Drop repeated labels: points with the same text at the same place get one label.
+
+    Returns
+    -------
+    tuple of list
+        (anchors, texts) without repeats, in first-seen order.
+    """
+    seen = set()
+    out_a, out_t = [], []
+    for (x, y), t in zip(anchors, texts):
+        key = (t, round(float(x), decimals), round(float(y), decimals))
+        if key in seen:
+            continue
+        seen.add(key)
+        out_a.append((x, y))
+        out_t.append(t)
+    return out_a, out_t
+
+
 def _marker_kwargs(style, stable: bool) -> dict:
     color = style.color if style is not None else "#000000"
     marker = style.marker if style is not None else "o"
@@ -486,7 +506,7 @@ def draw_view(view: str, characteristics, load=None, operating=None, *, ax=None,
     dict
         ``figure``, ``axes``, ``lines`` (one Line2D per characteristic, in order), ``load``
         (Line2D or None), ``points`` (Line2D of operating markers), ``annotations`` (their
-        labels), ``band`` and ``band_label`` (runaway band, or None), ``notes`` (Text of
+        labels; points that coincide share one), ``band`` and ``band_label`` (runaway band, or None), ``notes`` (Text of
         the reasons results give, such as "runs away", or None), ``legend``.
     """
     spec = _spec(view)
@@ -538,7 +558,7 @@ def draw_view(view: str, characteristics, load=None, operating=None, *, ax=None,
             xy = load_xy(load, (max(0.0, ylim[0]) / f, ylim[1] / f), view, units)
             (out["load"],) = ax.plot(*xy, **LOAD_STYLE, label=load_label(load), zorder=1.5)
 
-        anchors, texts, kws = [], [], []
+        anchors, texts = [], []
         for r, idx in pairs:
             s = styles[idx] if idx is not None else None
             for p in r.points:
@@ -548,7 +568,6 @@ def draw_view(view: str, characteristics, load=None, operating=None, *, ax=None,
                 out["points"].append(m)
                 anchors.append((x, y))
                 texts.append(point_label(p, units))
-                kws.append(s.color if s is not None else "#000000")
         reasons = [f"{styles[i].label if i is not None else 'result'}: {r.reason}"
                    for r, i in pairs if getattr(r, "reason", None)]
         if reasons:
@@ -563,11 +582,12 @@ def draw_view(view: str, characteristics, load=None, operating=None, *, ax=None,
         elif legend is not None:
             out["legend"] = ax.legend(loc="best", handlelength=3.2, fontsize=6, framealpha=0.9)
 
+        anchors, texts = merge_labels(anchors, texts)
         if anchors:
             if fig.get_layout_engine() is not None:
                 fig.draw_without_rendering()  # settle the layout so label spacing is final
-            for (x, y), text, color, (dx, dy, ha) in zip(anchors, texts, kws,
-                                                          place_labels(ax, anchors, texts, fontsize=6, top=lim["safe"])):
+            for (x, y), text, (dx, dy, ha) in zip(anchors, texts,
+                                                   place_labels(ax, anchors, texts, fontsize=6, top=lim["safe"])):
                 out["annotations"].append(ax.annotate(
                     text, xy=(x, y), xytext=(dx, dy), textcoords="offset points", ha=ha, va="center",
                     fontsize=6, zorder=5, annotation_clip=True,

@@ -33,7 +33,7 @@ import textwrap
 from ..models.units import display_units
 from ..models.validation import nonnegative
 from .curves import (_BAND_COLOR, _BAND_TEXT, _axis_title, _factor, _legend_kwargs, _legend_labels, _marker_kwargs,
-                     _nan_range, _spec, _unit, as_list, axis_limits, load_label, load_xy, pair_operating,
+                     _nan_range, _spec, _unit, as_list, axis_limits, load_label, load_xy, merge_labels, pair_operating,
                      place_labels, point_label, point_xy, view_xy)
 from .style import CONNECTION_STYLES, LOAD_STYLE, chart_style, new_figure, style_key, styles_for
 
@@ -352,6 +352,7 @@ class LiveChart:
                 elif m.get_visible():
                     m.set_visible(False)
                     m.set_data([], [])
+        anchors, texts = merge_labels(anchors, texts)
         band_top = safe if (safe is not None and safe < ylim[1]) else None
         offsets = place_labels(ax, anchors, texts, fontsize=6, top=band_top) if anchors else []
         for i, ((x, y), text, (dx, dy, ha)) in enumerate(zip(anchors, texts, offsets)):
