@@ -243,29 +243,35 @@ def control_sweep(machine, load, parameter: str, values, *, voltage=None, grid: 
         w, t = ev.speed_torque(Ia)
         w, t = np.broadcast_to(w, Ia.shape), np.broadcast_to(t, Ia.shape)
         f = t - np.asarray(load.torque(w), dtype=float)
-        valid = np.isfinite(w) & (np.abs(w) <= ws) & np.isfinite(f)
-    sc = _sign_change_cells(f, valid, jumps)
+        finite = np.isfinite(w) & np.isfinite(f)
+        valid = finite & (np.abs(w) <= ws)
+    sc = _sign_change_cells(f, finite, valid, jumps)
     rows = np.arange(n)
-    t_start, f_start, f_back = t[:, im], f[:, im], f[:, im + 1]
-    starts = (t_start > breakaway) & (f_start > 0) & (i0[:, 0] > 0)
-    back = ~starts & (f_back < 0) & (i0[:, 0] > 0)
-    # forward: the first event below standstill (a bracket, or an invalid node)
-    ev_f = sc[:, :im] | ~valid[:, :im]
-    has_f = ev_f.any(axis=1)
-    cf = im - 1 - np.argmax(ev_f[:, ::-1], axis=1)
-    fwd_ok = starts & has_f & sc[rows, np.where(has_f, cf, 0)]
-    # backward: the first event above standstill
-    ev_b = sc[:, im + 1:] | ~valid[:, im + 2:]
-    has_b = ev_b.any(axis=1)
-    cb = im + 1 + np.argmax(ev_b, axis=1)
-    bwd_ok = back & has_b & sc[rows, np.where(has_b, np.minimum(cb, sc.shape[1] - 1), 0)]
-    cell = np.where(fwd_ok, cf, cb)
-    sel = np.flatnonzero(fwd_ok | bwd_ok)
+    # either side of standstill; the positive-speed side is above I_0 where the flux has reversed
+    up = ~(w[:, im] > 0)
+    fwd_node, bwd_node = np.where(up, im + 1, im), np.where(up, im, im + 1)
+    t_start, f_start, f_back = t[rows, fwd_node], f[rows, fwd_node], f[rows, bwd_node]
+    live = i0[:, 0] > 0
+    starts = (t_start > breakaway) & (f_start > 0) & live
+    back = ~starts & (f_back < 0) & live
+    # the first event met walking down from standstill (a bracket, or a node beyond the safe speed)
+    ev_d = sc[:, :im] | ~valid[:, :im]
+    has_d = ev_d.any(axis=1)
+    cd = im - 1 - np.argmax(ev_d[:, ::-1], axis=1)
+    # ... and walking up
+    ev_u = sc[:, im + 1:] | ~valid[:, im + 2:]
+    has_u = ev_u.any(axis=1)
+    cu = im + 1 + np.argmax(ev_u, axis=1)
+    down = (starts & ~up) | (back & up)
+    ok_d = down & has_d & sc[rows, cd]
+    ok_u = ~down & (starts | back) & has_u & sc[rows, np.minimum(cu, sc.shape[1] - 1)]
+    cell = np.where(down, cd, cu)
+    found = ok_d | ok_u
+    sel = np.flatnonzero(found)
     reason = np.full(n, "", dtype=object)
-    reason[starts & ~fwd_ok] = "runs away"
-    reason[back & ~bwd_ok] = "runs away"
+    reason[(starts | back) & ~found] = "runs away"
     reason[~starts & ~back] = "cannot start"
-    reason[bwd_ok] = "generating"
+    reason[back & found] = "cannot start"  # driven backward; "generating" below where power flows in
     out = {k: np.full(n, np.nan) for k in ("speed", "torque", "armature_current", "supply_current", "field_current",
                                             "input_power", "output_power", "efficiency", "stability_slope",
                                             "residual")}
@@ -316,6 +322,11 @@ def control_sweep(machine, load, parameter: str, values, *, voltage=None, grid: 
         gen = np.zeros(n, bool)
         gen[sel] = p_out < 0
         reason[gen] = "generating"
+        far = np.zeros(n, bool)
+        far[sel] = ~(np.abs(ws_) <= ws)  # the bracket straddled the safe speed, root beyond it
+        for k in out:
+            out[k][far] = np.nan
+        reason[far] = "runs away"
     volts = np.broadcast_to(np.asarray(V, dtype=float).reshape(-1), (n,)).copy()
     stable = np.where(np.isnan(out["stability_slope"]), False, out["stability_slope"] < 0)
     return ControlSweep(machine=machine, load=load, parameter=parameter, setting=vals, voltage=volts,

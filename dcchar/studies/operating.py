@@ -202,9 +202,12 @@ def _unit_grid(n: int):
     return x, (n_g - 1, n_g + n_m - 1)
 
 
-def _sign_change_cells(f, valid, jumps):
-    """Indices i where f changes sign strictly between nodes i and i+1, both valid, not a jump cell."""
-    ok = valid[..., :-1] & valid[..., 1:] & (np.sign(f[..., :-1]) * np.sign(f[..., 1:]) < 0)
+def _sign_change_cells(f, finite, valid, jumps):
+    """Cells (i, i+1) where f changes sign strictly, both ends finite and at least one within the
+    safe speed (a root at the edge of the runaway region is kept if its own speed is safe), not
+    across a discontinuity."""
+    ok = (finite[..., :-1] & finite[..., 1:] & (valid[..., :-1] | valid[..., 1:])
+          & (np.sign(f[..., :-1]) * np.sign(f[..., 1:]) < 0))
     ok[..., list(jumps)] = False
     return ok
 
@@ -557,21 +560,28 @@ def operating_points(machine, load, voltage=None, *, grid: int = 112, method: st
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         w, t = ev.speed_torque(x * i0)
         f = t - np.asarray(load_torque(w), dtype=float)
+        finite = np.isfinite(w) & np.isfinite(f)
         inside = np.isfinite(w) & (np.abs(w) <= ws)
-        valid = inside & np.isfinite(f)
+        valid = inside & finite
         hx, hf, hv = _hidden_pairs(ev, load, x, f, valid, jumps, i0, ws)
-    # the nodes either side of standstill (x = 1 -/+ tiny): torque as the rotor begins to turn
-    t_start, f_start, f_back = float(t[jumps[1]]), float(f[jumps[1]]), float(f[jumps[1] + 1])
+    # the nodes either side of standstill (x = 1 -/+ tiny): torque as the rotor begins to turn.
+    # Normally the speed is positive below I_0; where the flux has reversed at standstill (a
+    # differential compound) the positive-speed side is above it.
+    im = jumps[1]
+    up = not w[im] > 0  # the forward (w > 0) side lies at I_a > I_0
+    fwd, bwd = (im + 1, im) if up else (im, im + 1)
+    t_start, f_start, f_back = float(t[fwd]), float(f[fwd]), float(f[bwd])
     if hx.size:
         order = np.argsort(np.concatenate([x, hx]), kind="stable")
         xs = np.concatenate([x, hx])[order]
         fs_ = np.concatenate([f, hf])[order]
         vs = np.concatenate([valid, hv])[order]
+        fin = np.concatenate([finite, hv])[order]
         rank = np.argsort(order)
         jumps_s = tuple(int(rank[j]) for j in jumps)
     else:
-        xs, fs_, vs, jumps_s = x, f, valid, jumps
-    cells = np.flatnonzero(_sign_change_cells(fs_, vs, jumps_s))
+        xs, fs_, vs, fin, jumps_s = x, f, valid, finite, jumps
+    cells = np.flatnonzero(_sign_change_cells(fs_, fin, vs, jumps_s))
     kw = {"xtol": 1e-13 * i0, "rtol": _EPS4, "maxiter": 200}
     kw.update(solver_kwargs or {})
     kw.update(full_output=True, disp=False)
@@ -586,6 +596,8 @@ def operating_points(machine, load, voltage=None, *, grid: int = 112, method: st
         tl = float(load_torque(wr)) if tl is None else tl
         res = tr - tl
         memo.clear()
+        if not abs(wr) <= ws:
+            continue  # at the edge of the runaway region, on its far side
         scale = max(abs(t_start), abs(tr), abs(tl), 1e-12)
         (roots if abs(res) <= _ACCEPT * scale else disc).append((r, rr, res))
     for j in np.flatnonzero((fs_ == 0) & vs):
@@ -594,7 +606,7 @@ def operating_points(machine, load, voltage=None, *, grid: int = 112, method: st
     for r, rr, res in sorted(roots, key=lambda z: z[0]):
         pts[r] = _make_point(machine, load, r, i0, t_start, breakaway, ws, rr, res, speed_torque, full)
     # the runaway region on the grid (reported, never searched), and the settling path from standstill
-    point, reason, detail = _settle(xs, vs, i0, pts, t_start, breakaway, f_start, f_back, ws)
+    point, reason, detail = _settle(xs, vs, i0, pts, t_start, breakaway, f_start, f_back, ws, up)
     if point is not None and reason is None and point.output_power < 0:
         reason = "generating"
         detail = (f"mechanical power {-point.output_power:.4g} W flows into the shaft at "
@@ -614,32 +626,40 @@ def _intervals(currents, mask):
     return tuple((float(currents[a]), float(currents[b])) for a, b in zip(first, last))
 
 
-def _settle(xs, valid, i0, pts, t_start, breakaway, f_start, f_back, ws):
-    """The point met from rest, or None with the reason (``xs``: grid of I_a/I_0)."""
+def _first_root(xs, valid, i0, pts, up):
+    """The first root met from standstill moving along the grid upward (or downward) in I_a,
+    stopping at the first node beyond the safe speed or undefined."""
     roots = sorted(pts)
     bad = xs[~valid]
+    if up:
+        bad = bad[bad > 1.0]
+        limit = bad.min() * i0 if bad.size else math.inf
+        cand = [r for r in roots if i0 < r < limit]
+        return pts[cand[0]] if cand else None
+    bad = bad[bad < 1.0]
+    limit = bad.max() * i0 if bad.size else -math.inf
+    cand = [r for r in roots if limit < r < i0]
+    return pts[cand[-1]] if cand else None
+
+
+def _settle(xs, valid, i0, pts, t_start, breakaway, f_start, f_back, ws, up):
+    """The point met from rest, or None, with the reason (``xs``: grid of I_a/I_0)."""
     if t_start > breakaway and f_start > 0:
-        # accelerates forward: I_a falls from I_0; stop at the first invalid node
-        bad = bad[bad < 1.0]
-        limit = bad.max() * i0 if bad.size else -math.inf
-        cand = [r for r in roots if limit < r < i0]
-        if cand:
-            return pts[cand[-1]], None, ""
+        p = _first_root(xs, valid, i0, pts, up)
+        if p is not None:
+            return p, None, ""
         lim = f"the safe speed ({ws / RPM:.0f} r/min)" if math.isfinite(ws) else "any bound"
         return None, "runs away", f"the motor torque exceeds the load torque up to {lim}"
     if f_back < 0:
         # the rotor is driven backward: by the load, or by the motor's own reversed torque
-        bad = bad[bad > 1.0]
-        limit = bad.min() * i0 if bad.size else math.inf
-        cand = [r for r in roots if i0 < r < limit]
+        p = _first_root(xs, valid, i0, pts, not up)
         if t_start < 0:
             lead = (f"the locked-rotor torque is negative ({t_start:.4g} N*m: the field reverses at "
                     "standstill) and the motor starts backward")
         else:
             lead = (f"the load torque exceeds the locked-rotor torque {t_start:.4g} N*m and drives the "
                     "motor backward")
-        if cand:
-            p = pts[cand[0]]
+        if p is not None:
             return p, "generating" if p.output_power < 0 else "cannot start", \
                 f"{lead}; it settles at {p.speed_rpm:.1f} r/min ({p.mode})"
         return None, "runs away", f"{lead}, with no point within the safe speed or the model's range"
