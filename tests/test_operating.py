@@ -18,7 +18,8 @@ from dcchar.models.loads import ConstantTorque, Fan, Linear, Quadratic
 from dcchar.models.losses import RotationalLoss
 from dcchar.models.magnetics import Froehlich, LinearMagnetization
 from dcchar.models.units import RPM
-from dcchar.studies.operating import METHODS, _scalar_functions, operating_points, speed_regulation, starting
+from dcchar.studies._bracketing import _scalar_functions
+from dcchar.studies.operating import METHODS, operating_points, speed_regulation, starting
 
 
 # ----------------------------------------------------------------------------------------------

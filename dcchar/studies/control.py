@@ -27,7 +27,8 @@ import numpy as np
 from ..errors import ParameterError, SolverError
 from ..models.units import RPM
 from ..models.validation import choice, positive, real
-from .operating import _TINY, _Evaluator, _check_load, _sign_change_cells, _unit_grid, operating_points
+from ._bracketing import _Evaluator, _sign_change_cells, _unit_grid
+from .operating import _check_load, operating_points
 
 __all__ = ["CONTROL_PARAMETERS", "ControlSweep", "control_sweep"]
 

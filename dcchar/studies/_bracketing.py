@@ -1,0 +1,217 @@
+"""Vectorized evaluation and the bracketing grid shared by the operating-point and control studies.
+
+Private to :mod:`dcchar.studies.operating` and :mod:`dcchar.studies.control`: the speed and
+shaft torque of a machine on arrays of armature current (with some circuit values replaced by
+arrays of settings), pure-Python scalar functions for root finders, the grid of I_a/I_0 with its
+two discontinuities, and the search for roots that hide between grid nodes.
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+
+import numpy as np
+
+from ..models import symbolic
+from ..models.magnetics import NoArmatureReaction
+
+_TINY = 1e-9  # offset of grid nodes from the two discontinuities (I_a = 0 and standstill), x I_0
+
+@functools.lru_cache(maxsize=None)
+def _speed_torque_kernel(connection: str):
+    """numpy kernel f(I_a, kphi, V, *circuit, *losses) -> (speed, shaft torque), from the sympy equations."""
+    import sympy as sp
+
+    out = symbolic.output_expressions(connection)
+    return sp.lambdify(symbolic._args(connection, "output"), [out["speed"], out["shaft_torque"]],
+                       modules="numpy", cse=True)
+
+
+#: Names of circuit values that a study may replace by arrays (see :class:`_Evaluator`).
+_OVERRIDABLE = ("R_x", "R_f", "d", "V_f")
+
+
+class _Evaluator:
+    """Speed and shaft torque of one machine on arrays, with the supply voltage and some circuit
+    values (R_x, R_f, d, V_f; see :data:`dcchar.models.symbolic.CIRCUIT_PARAMETERS`) given as
+    arrays that broadcast against the armature current (settings down, currents across)."""
+
+    def __init__(self, machine, voltage, overrides=None, circuit=None):
+        self.machine = machine
+        self.connection = conn = machine.connection
+        names = symbolic.CIRCUIT_PARAMETERS[conn]
+        circuit = list(machine.circuit_parameters() if circuit is None else circuit)
+        for name, value in (overrides or {}).items():
+            circuit[names.index(name)] = value
+        self.names = names
+        self.circuit = tuple(circuit)
+        self.voltage = voltage
+        self.loss = (*machine.rotational_loss.kernel_parameters(), machine.stray_load)
+
+    def _param(self, name):
+        return self.voltage if name == "V" else self.circuit[self.names.index(name)]
+
+    def take(self, rows):
+        """The same evaluator with every array parameter reduced to rows ``rows`` (1-D)."""
+        def pick(v):
+            nd = np.ndim(v)
+            return np.asarray(v)[rows, 0] if nd == 2 else (np.asarray(v)[rows] if nd == 1 else v)
+        ev = object.__new__(_Evaluator)
+        ev.__dict__.update(self.__dict__)
+        ev.voltage = pick(self.voltage)
+        ev.circuit = tuple(pick(v) for v in self.circuit)
+        return ev
+
+    def excitation(self, Ia):
+        if self.connection == "permanent_magnet":
+            z = np.zeros_like(Ia)
+            return z, z, z, Ia
+        far = self.machine.armature_reaction.excitation(Ia)
+        return symbolic.excitation_kernel(self.connection)(Ia, self.voltage, *self.circuit, far)
+
+    def speed_torque(self, Ia):
+        """(speed, shaft torque) arrays; call inside ``np.errstate`` (kphi = 0 gives inf/nan)."""
+        F = self.excitation(Ia)[0]
+        kphi = self.machine._kphi(F, Ia)
+        return _speed_torque_kernel(self.connection)(Ia, kphi, self.voltage, *self.circuit, *self.loss)
+
+    def full_state(self, Ia):
+        """Every kernel output at ``Ia`` (arrays): the outputs of the symbolic kernels plus kphi."""
+        F, If, Is, IL = self.excitation(Ia)
+        kphi = self.machine._kphi(F, Ia)
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            out = symbolic.output_kernel(self.connection)(Ia, kphi, self.voltage, *self.circuit, *self.loss)
+        shape = np.shape(Ia)
+        d = {k: np.broadcast_to(v, shape) for k, v in zip(symbolic.OUTPUTS, out)}
+        d.update(excitation=np.broadcast_to(F, shape), field_current=np.broadcast_to(If, shape),
+                 series_field_current=np.broadcast_to(Is, shape), supply_current=np.broadcast_to(IL, shape),
+                 kphi=np.broadcast_to(kphi, shape))
+        return d
+
+    def standstill_current(self):
+        """Armature current at zero speed (E = 0), array-valued where the parameters are. [A]"""
+        V = self.voltage
+        Ra, Rx, Vb = (self._param(n) for n in ("R_a", "R_x", "V_b"))
+        conn = self.connection
+        if conn in ("series", "long_shunt_compound"):
+            return np.maximum(V - Vb, 0.0) / (Ra + Rx + self._param("R_s") * self._param("d"))
+        if conn == "short_shunt_compound":
+            rse = self._param("R_s") * self._param("d")
+            rf = self._param("R_f")
+            num = V - Vb - rse * V / (rf + rse)
+            return np.maximum(num, 0.0) / (Ra + Rx + rse - rse * rse / (rf + rse))
+        return np.maximum(V - Vb, 0.0) / (Ra + Rx)
+
+
+def _scalar_functions(machine, voltage, circuit=None):
+    """Pure-Python (speed, shaft torque) and full-state functions of I_a, with the circuit bound once.
+
+    The same computation as :meth:`Machine.scalar_state` (the tests hold them equal), without
+    recomputing the hot resistances on every call of a root finder.
+    """
+    conn = machine.connection
+    circuit = machine.circuit_parameters() if circuit is None else circuit
+    loss = (*machine.rotational_loss.kernel_parameters(), machine.stray_load)
+    out_k = symbolic.output_kernel(conn, True)
+    kphi_of = machine._kphi
+    V = float(voltage)
+    if conn == "permanent_magnet":
+        def excite(i):
+            return 0.0, 0.0, 0.0, i
+    else:
+        ex_k = symbolic.excitation_kernel(conn, True)
+        ar = machine.armature_reaction
+        none = isinstance(ar, NoArmatureReaction)
+
+        def excite(i):
+            return ex_k(i, V, *circuit, 0.0 if none else float(ar.excitation(i)))
+
+    def speed_torque(i):
+        F = excite(i)[0]
+        k = float(kphi_of(F, i))
+        if k == 0.0:
+            return math.inf, 0.0
+        o = out_k(i, k, V, *circuit, *loss)
+        return o[1], o[3]
+
+    def full(i):
+        F, If, Is, IL = excite(i)
+        k = float(kphi_of(F, i))
+        o = dict(zip(symbolic.OUTPUTS, out_k(i, k, V, *circuit, *loss)))
+        o.update(excitation=F, field_current=If, series_field_current=Is, supply_current=IL, kphi=k)
+        return o
+
+    return speed_torque, full
+
+
+@functools.lru_cache(maxsize=64)
+def _unit_grid(n: int):
+    """Grid of I_a/I_0 from -1 to 2, dense on the light-load motoring branch.
+
+    Returns the grid and the indices ``i`` of the two cells (i, i+1) that straddle a
+    discontinuity (I_a = 0: brush drop changes sign; I_a = I_0: speed changes sign, friction
+    jumps); no bracket is taken across them.
+    """
+    n_m = max(8, round(n * 4 / 7))
+    n_g = max(4, round(n * 2 / 7))
+    n_b = max(4, n - n_m - n_g)
+    t = np.linspace(0.0, 1.0, n_m)
+    x_m = _TINY + (1.0 - 2 * _TINY) * t * t
+    t = np.linspace(0.0, 1.0, n_g)
+    x_g = -(_TINY + (1.0 - _TINY) * t * t)[::-1]
+    t = np.linspace(0.0, 1.0, n_b)
+    x_b = 1.0 + _TINY + (1.0 - _TINY) * t
+    x = np.concatenate([x_g, x_m, x_b])
+    x.flags.writeable = False
+    return x, (n_g - 1, n_g + n_m - 1)
+
+
+def _sign_change_cells(f, finite, valid, jumps):
+    """Cells (i, i+1) where f changes sign strictly, both ends finite and at least one within the
+    safe speed (a root at the edge of the runaway region is kept if its own speed is safe), not
+    across a discontinuity."""
+    ok = (finite[..., :-1] & finite[..., 1:] & (valid[..., :-1] | valid[..., 1:])
+          & (np.sign(f[..., :-1]) * np.sign(f[..., 1:]) < 0))
+    ok[..., list(jumps)] = False
+    return ok
+
+
+
+def _hidden_pairs(ev, load, x, f, valid, jumps, i0, ws, depth=3, n_local=33):
+    """Extra nodes where f has a local extremum near zero between grid nodes (two roots may hide)."""
+    d = np.diff(f)
+    sd = np.signbit(d)
+    ext = (np.flatnonzero(sd[:-1] != sd[1:]) + 1).tolist()  # nodes where f turns
+    skip = {k for j in jumps for k in (j, j + 1)}  # nodes next to a jump cell show a false extremum
+    cand = []
+    for c in ext:
+        if c in skip or not (valid[c - 1] and valid[c] and valid[c + 1]):
+            continue
+        fc, dl, dr = f[c], d[c - 1], d[c]
+        if ((dl < 0 < dr and fc > 0) or (dl > 0 > dr and fc < 0)) and abs(fc) < 2.0 * max(abs(dl), abs(dr)):
+            cand.append(c)
+    out_x, out_f, out_v = [], [], []
+    for c in cand:
+        xs = np.linspace(x[c - 1], x[c + 1], n_local)
+        w, t = ev.speed_torque(xs * i0)
+        fl = t - np.asarray(load.torque(w), dtype=float)
+        vl = np.isfinite(fl) & np.isfinite(w) & (np.abs(w) <= ws)
+        out_x.append(xs), out_f.append(fl), out_v.append(vl)
+        if depth > 1:
+            ex, ef, evv = _hidden_pairs(ev, load, xs, fl, vl, (), i0, ws, depth - 1, n_local)
+            out_x.append(ex), out_f.append(ef), out_v.append(evv)
+    if not out_x:
+        return np.empty(0), np.empty(0), np.empty(0, bool)
+    return np.concatenate(out_x), np.concatenate(out_f), np.concatenate(out_v)
+
+
+
+def _intervals(currents, mask):
+    idx = np.flatnonzero(mask)
+    if idx.size == 0:
+        return ()
+    cut = np.flatnonzero(np.diff(idx) > 1)
+    first = np.concatenate([idx[:1], idx[cut + 1]])
+    last = np.concatenate([idx[cut], idx[-1:]])
+    return tuple((float(currents[a]), float(currents[b])) for a, b in zip(first, last))
