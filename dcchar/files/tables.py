@@ -1,0 +1,68 @@
+"""Tables for people: the comparison rows converted to display units, with headings that carry them.
+
+The widget kit's results table and the report's CSV, Markdown and HTML tables all come from
+:func:`display_table`, so they show the same numbers.
+"""
+
+from __future__ import annotations
+
+import math
+
+from ..models.units import display_units
+from ..studies.comparison import TABLE_COLUMNS
+
+__all__ = ["display_table", "format_value"]
+
+_SPEED_RPM = {"rad/s"}
+
+
+def display_table(comparison, units: str = "si", columns=None):
+    """Headings and rows of ``comparison`` in the display ``units`` (``"si"`` or ``"us"``).
+
+    Parameters
+    ----------
+    comparison : dcchar.studies.comparison.Comparison
+    units : {"si", "us"}
+        Speeds are always in r/min; torque in N*m or lbf*ft; power in kW or hp.
+    columns : sequence of str, optional
+        Keys of :data:`dcchar.studies.comparison.TABLE_COLUMNS`; default all.
+
+    Returns
+    -------
+    headings : list of str
+        Column headings with their display unit, e.g. ``"shaft torque [lbf·ft]"``.
+    rows : list of list
+        Numbers converted to the display units (floats; nan where missing), strings and bools.
+    """
+    table = display_units(units)
+    keys = list(TABLE_COLUMNS) if columns is None else list(columns)
+    headings, factors = [], []
+    for k in keys:
+        heading, si_unit, quantity = TABLE_COLUMNS[k]
+        if quantity is not None:
+            label, factor = table[quantity]
+        else:
+            label, factor = si_unit, 1.0
+        headings.append(f"{heading} [{label}]" if label and label != "-" else heading)
+        factors.append(factor)
+    rows = []
+    for r in comparison.rows():
+        row = []
+        for k, f in zip(keys, factors):
+            v = r[k]
+            row.append(v / f if isinstance(v, float) else v)
+        rows.append(row)
+    return headings, rows
+
+
+def format_value(v, digits: int = 4) -> str:
+    """A table cell as text: numbers to ``digits`` significant figures, nan as an en dash."""
+    if isinstance(v, bool):
+        return "yes" if v else "no"
+    if isinstance(v, float):
+        if math.isnan(v):
+            return "–"
+        if math.isinf(v):
+            return "unbounded"
+        return f"{v:.{digits}g}" if abs(v) < 10 ** digits else f"{v:.0f}"
+    return str(v)
