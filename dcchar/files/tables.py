@@ -6,12 +6,14 @@ The widget kit's results table and the report's CSV, Markdown and HTML tables al
 
 from __future__ import annotations
 
+import csv
+import io
 import math
 
 from ..models.units import display_units
 from ..studies.comparison import TABLE_COLUMNS
 
-__all__ = ["display_table", "format_value"]
+__all__ = ["display_table", "format_value", "table_csv", "write_table_csv"]
 
 _SPEED_RPM = {"rad/s"}
 
@@ -66,3 +68,22 @@ def format_value(v, digits: int = 4) -> str:
             return "unbounded"
         return f"{v:.{digits}g}" if abs(v) < 10 ** digits else f"{v:.0f}"
     return str(v)
+
+
+def table_csv(headings, rows) -> str:
+    """CSV text of a table: full-precision numbers (repr), empty cell for nan, units in the headings."""
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(headings)
+    for row in rows:
+        w.writerow(["" if isinstance(v, float) and math.isnan(v) else repr(v) if isinstance(v, float) else v
+                    for v in row])
+    return buf.getvalue()
+
+
+def write_table_csv(comparison, path, units: str = "si", columns=None):
+    """Write the comparison table of ``comparison`` to ``path`` as CSV, atomically. Returns the path."""
+    from .atomic import atomic_write_text
+
+    headings, rows = display_table(comparison, units, columns)
+    return atomic_write_text(path, table_csv(headings, rows))
