@@ -32,10 +32,13 @@ Limits
   ``exp(1000)`` are rejected where they stand). Constants are computed with Python floats and
   :mod:`math`, operand by operand; a sub-expression in which sympy cancels the variable (``n - n``,
   ``0*n``) becomes a constant too, its value taken from sympy, so ``1/(n - n)`` is a division by
-  zero. Together these limits bound the work and memory of any accepted text.
+  zero. A sub-expression that sympy proves non-real for every real value of the variable
+  (``sqrt(-max(n, 1))``) is rejected too. Together these limits bound the work and memory of
+  any accepted text.
 
-Characters: the text must be ASCII, except that the Unicode minus sign U+2212 (as pasted from
-documents) is read as ``-``. Any other non-ASCII character is rejected at its position (this also
+Characters: the text must be printable ASCII without ``#`` (no comments), except that the
+Unicode minus sign U+2212 (as pasted from documents) is read as ``-``. Tabs and line breaks count
+as spaces. Any other non-ASCII character is rejected at its position (this also
 keeps look-alike letters from being folded into names).
 
 Evaluation: :attr:`Formula.function` is made with :func:`sympy.lambdify` for numpy on first use
@@ -132,7 +135,9 @@ class Formula:
 def _vectorize(symbol, expression):
     import sympy
 
-    raw = sympy.lambdify(symbol, expression, modules="numpy")
+    # exact integers beyond float64's exact range would print as Python ints numpy cannot take
+    big = {a: sympy.Float(a) for a in expression.atoms(sympy.Rational) if abs(a.p) > 2**53 or a.q > 2**53}
+    raw = sympy.lambdify(symbol, expression.xreplace(big) if big else expression, modules="numpy")
 
     def evaluate(x):
         try:
@@ -211,19 +216,24 @@ def _parse_cached(text, variable, allowed):
                            text, MAX_LENGTH)
     source = text.replace(_UNICODE_MINUS, "-")
     for i, ch in enumerate(source):
+        if ch == "#":
+            raise FormulaError("comments ('#') are not allowed in a formula", text, i)
         if not ch.isascii() or not (ch.isprintable() or ch in " \t\r\n"):
             raise FormulaError(f"character {ch!r} is not allowed (use printable ASCII; U+2212 minus is "
                                "read as '-')", text, i)
     if not source.strip():
         raise FormulaError("empty formula", text, 0)
+    # one line, same length (so that ast column offsets are text positions), no leading blanks
+    source = source.replace("\t", " ").replace("\r", " ").replace("\n", " ")
+    shift = len(source) - len(source.lstrip(" "))
     try:
-        tree = ast.parse(source, mode="eval")
+        tree = ast.parse(source[shift:], mode="eval")
     except SyntaxError as exc:
-        offset = exc.offset - 1 if exc.offset and exc.offset >= 1 else len(text)
+        offset = shift + exc.offset - 1 if exc.offset and exc.offset >= 1 else len(text)
         raise FormulaError(f"syntax error: {exc.msg}", text, min(offset, len(text))) from None
     except (RecursionError, MemoryError, ValueError):
         raise FormulaError("formula too deeply nested or malformed", text, 0) from None
-    builder = _Builder(text, variable, set(allowed))
+    builder = _Builder(text, variable, set(allowed), shift)
     expression, _ = builder.build(tree.body, 1)
     return Formula(text=text, variable=variable, expression=expression)
 
@@ -235,11 +245,12 @@ class _Builder:
     computed with :mod:`math` on floats alone, and ``None`` otherwise.
     """
 
-    def __init__(self, text, variable, allowed):
+    def __init__(self, text, variable, allowed, shift=0):
         import sympy
 
         self.sympy = sympy
         self.text = text
+        self.shift = shift
         self.variable = variable
         self.allowed = allowed
         self.symbol = sympy.Symbol(variable, real=True)
@@ -247,14 +258,12 @@ class _Builder:
     # -- errors -----------------------------------------------------------------------------
     def fail(self, message, node=None, position=None):
         if position is None:
-            position = getattr(node, "col_offset", 0) if node is not None else 0
+            position = node.col_offset + self.shift if node is not None else 0
         raise FormulaError(message, self.text, max(0, min(position, len(self.text))))
 
     def after(self, node):
         """Position of the first non-blank character after ``node`` (an operator, '.', '[')."""
-        i = getattr(node, "end_col_offset", None)
-        if i is None:
-            return node.col_offset
+        i = node.end_col_offset + self.shift
         while i < len(self.text) and self.text[i] in " \t\r\n)":
             i += 1
         return i
@@ -266,7 +275,14 @@ class _Builder:
 
     # -- tree walk --------------------------------------------------------------------------
     def build(self, node, depth):
-        expr, value = self._build(node, depth)
+        try:
+            expr, value = self._build(node, depth)
+        except FormulaError:
+            raise
+        except (ValueError, TypeError, ArithmeticError) as exc:  # sympy refused the combination
+            self.fail(f"sub-expression cannot be formed: {exc}", node)
+        if value is None and expr.is_extended_real is False:
+            self.fail("sub-expression has no real value at any speed", node)
         if value is None and not expr.free_symbols:
             # the variable cancelled (n - n, 0*n): the result is a constant like any other
             try:

@@ -221,7 +221,8 @@ class Hoist(Load):
 
     def motor_speed(self, hook_speed):
         """Motor speed [rad/s] that moves the hook at ``hook_speed`` [m/s] (positive up)."""
-        return np.asarray(hook_speed, dtype=float) * self.reeving / (self.drum_diameter / 2) * self._gear.ratio
+        drum = np.asarray(hook_speed, dtype=float) * self.reeving / (self.drum_diameter / 2)
+        return drum * self._gear.ratio
 
     def direction(self, speed):
         """``"raising"``, ``"lowering"`` or ``"holding"`` for each motor speed [rad/s]."""

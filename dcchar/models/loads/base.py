@@ -61,7 +61,8 @@ class Gearing:
 
     def __post_init__(self):
         object.__setattr__(self, "ratio", positive("ratio", self.ratio))
-        object.__setattr__(self, "efficiency", in_range("efficiency", self.efficiency, 0.0, 1.0, low_open=True))
+        eff = in_range("efficiency", self.efficiency, 0.0, 1.0, low_open=True)
+        object.__setattr__(self, "efficiency", eff)
 
     def load_speed(self, speed):
         """Load-shaft speed [rad/s] at motor speed ``speed`` [rad/s]."""
