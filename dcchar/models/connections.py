@@ -170,8 +170,27 @@ class Machine:
         return dataclasses.replace(self, **changes)
 
     def circuit_parameters(self) -> tuple:
-        """Circuit values in the order of :data:`dcchar.models.symbolic.CIRCUIT_PARAMETERS`."""
+        """Circuit values (hot resistances) in the order of :data:`dcchar.models.symbolic.CIRCUIT_PARAMETERS`.
+
+        Computed once per machine object (machines are immutable) and cached.
+        """
+        try:
+            return self.__dict__["_circuit_cache"]
+        except KeyError:
+            value = tuple(float(v) for v in self._circuit())
+            object.__setattr__(self, "_circuit_cache", value)
+            return value
+
+    def _circuit(self) -> tuple:
         raise NotImplementedError
+
+    def machine_constant(self, excitation, armature_current):
+        """Machine constant at net ``excitation`` [A-turns] and armature current [A]. [V*s/rad]
+
+        For wound fields this is the magnetization curve at F; for permanent magnets the magnet
+        constant at its temperature less the armature-reaction share.
+        """
+        return self._kphi(excitation, armature_current)
 
     def loop_resistance(self) -> float:
         """Resistance of the armature loop seen by I_a at standstill (for locked-rotor current). [ohm]"""
@@ -341,7 +360,7 @@ class SeparatelyExcited(Machine):
 
     field_circuit_resistance = property(_field_circuit, doc="Field winding (hot) plus rheostat. [ohm]")
 
-    def circuit_parameters(self):
+    def _circuit(self):
         return (self.hot_armature_resistance, self.external_resistance, self.brush_drop, self.field_turns,
                 self.field_circuit_resistance, self.field_voltage, 1.0 if self.count_field_input else 0.0)
 
@@ -381,7 +400,7 @@ class Shunt(Machine):
 
     field_circuit_resistance = property(_field_circuit, doc="Field winding (hot) plus rheostat. [ohm]")
 
-    def circuit_parameters(self):
+    def _circuit(self):
         return (self.hot_armature_resistance, self.external_resistance, self.brush_drop, self.field_turns,
                 self.field_circuit_resistance)
 
@@ -432,7 +451,7 @@ class Series(Machine):
 
     diverter_share = property(_diverter_share, doc="Share d of the branch current in the series turns. [-]")
 
-    def circuit_parameters(self):
+    def _circuit(self):
         return (self.hot_armature_resistance, self.external_resistance, self.brush_drop, self.series_turns,
                 self._hot(self.series_resistance), self.diverter_share)
 
@@ -489,7 +508,7 @@ class Compound(Machine):
     field_circuit_resistance = property(_field_circuit, doc="Field winding (hot) plus rheostat. [ohm]")
     diverter_share = property(_diverter_share, doc="Share d of the branch current in the series turns. [-]")
 
-    def circuit_parameters(self):
+    def _circuit(self):
         return (self.hot_armature_resistance, self.external_resistance, self.brush_drop, self.field_turns,
                 self.field_circuit_resistance, self.series_turns, self._hot(self.series_resistance),
                 self.diverter_share, 1.0 if self.kind == "cumulative" else -1.0)
@@ -541,6 +560,6 @@ class PermanentMagnet(Machine):
         k = self.hot_kphi * (1.0 - self.demagnetization * i)
         return np.where(k > 0, k, np.nan) if np.ndim(k) else (float(k) if k > 0 else math.nan)
 
-    def circuit_parameters(self):
+    def _circuit(self):
         return (self.hot_armature_resistance, self.external_resistance, self.brush_drop)
 

@@ -36,7 +36,10 @@ class RotationalLoss:
         A rotational loss taken as constant, as textbooks often lump it. [W]
     fade_speed : float, default 1.0
         The fixed loss is P_0*w^2/(w^2 + w_s^2), so it vanishes at standstill instead of asking an
-        infinite torque there; at 100 rad/s and w_s = 1 rad/s it is within 1e-4 of P_0. [rad/s]
+        infinite torque there; at 100 rad/s and w_s = 1 rad/s it is within 1e-4 of P_0. Near
+        standstill it asks a drag torque of up to P_0/(2*w_s) (at w = w_s): keep w_s well below the
+        running speed but not so small that this peak exceeds the starting torque, or the model
+        will report that the motor cannot start. [rad/s]
     """
 
     friction_torque: float = 0.0
