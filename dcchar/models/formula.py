@@ -12,7 +12,9 @@ The grammar accepted
 - the one speed variable (``n`` by default);
 - the operators ``+ - * / **``, unary ``+`` and ``-``, and parentheses;
 - the functions ``sqrt exp log abs sin cos tanh`` (one argument each; ``log`` is the natural
-  logarithm) and ``min max`` (two or more arguments).
+  logarithm) and ``min max`` (2 to :data:`MAX_ARGUMENTS` = 6 arguments, also counted after sympy
+  merges nested ones: sympy's ``Min``/``Max`` compare their arguments pairwise, so their cost
+  grows fast with the count).
 
 Everything else is rejected with a :class:`~dcchar.errors.FormulaError` whose ``position`` is the
 0-based index of the offending character in the text: other names, attribute access, subscripts,
@@ -59,7 +61,7 @@ import numpy as np
 
 from ..errors import FormulaError, ParameterError
 
-__all__ = ["Formula", "parse_formula", "FUNCTIONS", "MAX_LENGTH", "MAX_DEPTH", "MAX_EXPONENT"]
+__all__ = ["Formula", "parse_formula", "FUNCTIONS", "MAX_LENGTH", "MAX_DEPTH", "MAX_EXPONENT", "MAX_ARGUMENTS"]
 
 #: Names of the functions a formula may call.
 FUNCTIONS = ("sqrt", "exp", "log", "abs", "min", "max", "sin", "cos", "tanh")
@@ -67,6 +69,8 @@ FUNCTIONS = ("sqrt", "exp", "log", "abs", "min", "max", "sin", "cos", "tanh")
 MAX_LENGTH = 500
 #: Deepest nesting of the syntax tree accepted [levels].
 MAX_DEPTH = 32
+#: Most arguments of one ``min``/``max`` (also after sympy merges nested ones).
+MAX_ARGUMENTS = 6
 #: Largest magnitude of an exponent.
 MAX_EXPONENT = 12
 #: Largest magnitude of a constant sub-expression.
@@ -118,11 +122,14 @@ class Formula:
         Notes
         -----
         Made by :func:`sympy.diff`; at the corners of ``abs``, ``min`` and ``max`` it takes the
-        mean of the two one-sided values (sympy's ``Heaviside(0) = 1/2``).
+        mean of the two one-sided values (the step ``Heaviside(x)`` is evaluated as
+        ``(1 + sign(x))/2``, which is 1/2 at 0).
         """
         import sympy
 
-        return _vectorize(self.symbol, sympy.diff(self.expression, self.symbol))
+        d = sympy.diff(self.expression, self.symbol)
+        d = d.replace(sympy.Heaviside, lambda x, *rest: (1 + sympy.sign(x)) / 2)
+        return _vectorize(self.symbol, d)
 
     def __call__(self, x):
         """Evaluate the formula at ``x`` (array-like); returns a float ndarray."""
@@ -405,8 +412,8 @@ class _Builder:
         nargs = len(node.args)
         if name in _ONE_ARGUMENT and nargs != 1:
             self.fail(f"{name}() takes exactly one argument, {nargs} given", func)
-        if name in ("min", "max") and nargs < 2:
-            self.fail(f"{name}() takes two or more arguments, {nargs} given", func)
+        if name in ("min", "max") and not 2 <= nargs <= MAX_ARGUMENTS:
+            self.fail(f"{name}() takes 2 to {MAX_ARGUMENTS} arguments, {nargs} given", func)
         built = [self.build(arg, depth + 1) for arg in node.args]
         exprs = [e for e, _ in built]
         values = [v for _, v in built]
@@ -414,6 +421,8 @@ class _Builder:
         sp = self.sympy
         if name in ("min", "max"):
             expr = (sp.Min if name == "min" else sp.Max)(*exprs)
+            if isinstance(expr, (sp.Min, sp.Max)) and len(expr.args) > MAX_ARGUMENTS:
+                self.fail(f"nested {name}() gathers more than {MAX_ARGUMENTS} arguments", func)
             value = (min(values) if name == "min" else max(values)) if const else None
             return expr, (self.constant(value, node) if const else None)
         (arg,), (v,) = exprs, values
