@@ -1,0 +1,502 @@
+"""The comparer: candidate field connections on one load, with live controls, chart, table and cautions.
+
+Every number comes from :func:`dcchar.studies.comparison.compare` (the study the report and the
+command line ask too), every line from :class:`dcchar.charts.live.LiveChart`, every table cell
+from :func:`dcchar.files.tables.display_table`. The comparer only wires widgets to them:
+
+- a control change (slider, candidate tick box, load box) asks for one new comparison; bursts of
+  changes from the browser are coalesced (:class:`~dcchar.widgets.controls.Coalescer`), so a
+  dragged slider shows the newest value and never a queue of stale ones;
+- the chart's artists are made once; an update changes their data and blits;
+- a change of view or of units redraws the chart and the table from the last comparison
+  without solving again;
+- an error inside any callback is shown in the status line (``kit-status``) and the last good
+  state stays on screen.
+
+Examples
+--------
+In a notebook::
+
+    from dcchar.widgets import Comparer
+    comparer = Comparer(title="Hoist drive")
+    comparer                      # shows comparer.widget
+    comparer.controls["voltage"].value = 200.0
+    comparer.comparison.rows()[0]["speed"]
+"""
+
+from __future__ import annotations
+
+import contextlib
+import math
+import re
+import time
+import warnings
+from pathlib import Path
+
+import ipywidgets as w
+
+from ..charts.live import LiveChart
+from ..charts.style import styles_for
+from ..errors import ParameterError
+from ..studies.comparison import ControlSettings, compare
+from .controls import Coalescer, from_front_end, labelled_slider
+from .load_editor import LoadEditor
+from .panels import cautions_html, error_html, results_html, status_html, swatch_html
+
+__all__ = ["Comparer", "VIEW_CHOICES", "CONTROL_KEYS"]
+
+#: Views offered in the chart menu: label -> view name of :data:`dcchar.charts.curves.VIEWS`.
+VIEW_CHOICES = (("speed against torque", "torque_speed"), ("torque against current", "current_torque"),
+                ("efficiency against torque", "efficiency_torque"), ("efficiency against output", "efficiency_power"),
+                ("speed against current", "speed_current"))
+
+#: Keys of :attr:`Comparer.controls` (the sliders, and the diverter's on/off box).
+CONTROL_KEYS = ("voltage", "field_rheostat", "diverter_on", "diverter", "external_resistance", "series_share",
+                "winding_temperature", "magnet_temperature")
+
+_FIGSIZE_IN = (6.6, 4.5)  # 660 x 450 px at 100 dpi
+
+
+def _demo_spec() -> dict:
+    from ..studies.demo import DEMO_RATING, demo_armature, demo_magnetization
+    from ..studies.rating import DEFAULT_CONNECTIONS
+
+    return dict(armature=demo_armature(), rating=DEMO_RATING, magnetization=demo_magnetization(),
+                connections=DEFAULT_CONNECTIONS, series_share=0.3, name="demo frame")
+
+
+def _as_dict(machines) -> dict:
+    if hasattr(machines, "items"):
+        return dict(machines.items())
+    from ..charts.style import style_key
+
+    out = {}
+    for m in machines:
+        key = style_key(m).replace("/", "_")
+        base, n = key, 1
+        while key in out:
+            n += 1
+            key = f"{base}_{n}"
+        out[key] = m
+    return out
+
+
+def _section(text: str) -> w.HTML:
+    return w.HTML(f'<div style="font-weight:bold;color:#1f3b57;border-bottom:1px solid #9fb3c8;'
+                  f'margin:8px 0 3px 0;font-size:13px">{text}</div>')
+
+
+def _slug(text: str) -> str:
+    return re.sub(r"[^A-Za-z0-9]+", "-", text).strip("-").lower()[:40]
+
+
+class Comparer:
+    """Compare candidate connections on one load, live.
+
+    Parameters
+    ----------
+    machines : mapping of key -> Machine, or sequence of Machine, optional
+        The candidates. Default: the invented demo frame in six connections
+        (:func:`dcchar.studies.demo.demo_family`).
+    load : load object, optional
+        See :class:`~dcchar.widgets.load_editor.LoadEditor`; default an invented 1.5 t hoist.
+    settings : ControlSettings, optional
+        The scenario's control settings; the sliders start there and the reset button returns
+        there.
+    title : str
+        Shown above the kit and on exported charts.
+    family_spec : dict, optional
+        Keywords of :func:`dcchar.studies.rating.equal_rating_family` (``armature``, ``rating``,
+        ``magnetization``, ``connections``, ``series_share``, ...) that built ``machines``; with
+        it the compound series-share slider re-derives the family. Default: the demo frame's
+        when ``machines`` is None, else none (the slider is then disabled).
+    units : {"si", "us"}
+    view : str
+        Starting view (see :data:`VIEW_CHOICES`).
+    export_folder : str
+        Starting text of the export folder box.
+    debounce : float, default 0.012
+        Quiet time [s] after an update within which browser events are coalesced.
+
+    Attributes
+    ----------
+    widget : ipywidgets.VBox
+        The whole kit (class ``kit-comparer``); a cell ending with the comparer shows it.
+    comparison : dcchar.studies.comparison.Comparison
+        The last good comparison.
+    controls : dict
+        Slider (or check box) per key of :data:`CONTROL_KEYS`.
+    candidates : dict
+        Check box per candidate key.
+    view, units : the chart's view menu and the units switch.
+    load_editor : LoadEditor
+    chart : LiveChart
+    canvas : the ipympl canvas widget (class ``kit-figure``)
+    results_panel, cautions_panel, status_line : HTML widgets (``kit-results``, ``kit-cautions``,
+        ``kit-status``)
+    export_folder, export_button, reset_button
+    """
+
+    def __init__(self, machines=None, load=None, settings=None, *, title: str = "", family_spec=None,
+                 units: str = "si", view: str = "torque_speed", export_folder: str = "dcchar-export",
+                 debounce: float = 0.012):
+        if settings is not None and not isinstance(settings, ControlSettings):
+            raise ParameterError("settings", settings, "a ControlSettings or None")
+        if machines is None:
+            from ..studies.demo import demo_family
+
+            machines = demo_family()
+            if family_spec is None:
+                family_spec = _demo_spec()
+        self.title = str(title)
+        self._base = _as_dict(machines)
+        if not self._base:
+            raise ParameterError("machines", machines, "one or more machines")
+        self._spec = dict(family_spec) if family_spec is not None else None
+        self._share0 = float(self._spec.get("series_share", 0.3)) if self._spec else 0.3
+        self._families = {}
+        self._scenario = settings if settings is not None else ControlSettings()
+        self.comparison = None
+        self.last_error = None
+        self.timings = {}
+        self._held = False
+        self._coalescer = Coalescer(self._recompute, delay=debounce, report=self._report)
+
+        first = next(iter(self._base.values()))
+        rated = next((m.rating for m in self._base.values() if m.rating is not None), None)
+        reference = (rated.speed, rated.torque) if rated is not None else None
+
+        # candidates
+        styles = dict(zip(self._base, styles_for(list(self._base.values()))))
+        self._styles = styles
+        self.candidates = {}
+        rows = []
+        for key, m in self._base.items():
+            cb = w.Checkbox(value=True, description=m.label, indent=False, layout=w.Layout(width="auto"))
+            cb.add_class("kit-candidate")
+            cb.add_class("kit-candidate-" + key.replace("_", "-"))
+            cb.observe(self._on_control, names="value")
+            self.candidates[key] = cb
+            s = styles[key]
+            rows.append(w.HBox([w.HTML(swatch_html(s.color, s.linestyle), layout=w.Layout(width="30px")), cb],
+                               layout=w.Layout(height="24px")))
+        self._candidate_box = w.VBox(rows)
+        self._candidate_box.add_class("kit-candidates")
+
+        # sliders
+        sc = self._scenario
+        v_r = rated.voltage if rated is not None else (sc.voltage or 230.0)
+        fields = [m.field_resistance for m in self._base.values() if hasattr(m, "field_rheostat")]
+        series = [m.series_resistance for m in self._base.values() if hasattr(m, "diverter_resistance")]
+        r_a = max(m.armature_resistance for m in self._base.values())
+        magnets = [m for m in self._base.values() if hasattr(m, "magnet_temperature")]
+        self._initial = {
+            "voltage": sc.voltage if sc.voltage is not None else v_r,
+            "field_rheostat": sc.field_rheostat,
+            "diverter_on": not math.isinf(sc.diverter_resistance),
+            "diverter": sc.diverter_resistance if not math.isinf(sc.diverter_resistance) else
+            (max(series) if series else 0.1),
+            "external_resistance": sc.external_resistance,
+            "series_share": self._share0,
+            "winding_temperature": sc.winding_temperature if sc.winding_temperature is not None else
+            first.winding_temperature,
+            "magnet_temperature": sc.magnet_temperature if sc.magnet_temperature is not None else
+            (magnets[0].magnet_temperature if magnets else 20.0),
+        }
+        ini = self._initial
+        rs = max(series) if series else 0.1
+        rf = max(fields) if fields else 100.0
+        c = {}
+        c["voltage"] = labelled_slider("voltage", "supply voltage [V]", ini["voltage"], 0.2 * v_r, 1.2 * v_r)
+        c["field_rheostat"] = labelled_slider("field_rheostat", "field rheostat [Ω]", ini["field_rheostat"], 0.0,
+                                              1.5 * rf, tooltip="resistance added in the shunt or separate field")
+        c["diverter_on"] = w.Checkbox(value=ini["diverter_on"], description="series-field diverter fitted",
+                                      indent=False)
+        c["diverter_on"].add_class("kit-diverter-on")
+        c["diverter"] = labelled_slider("diverter", "series diverter [Ω]", ini["diverter"], 0.05 * rs, 10.0 * rs,
+                                        tooltip="resistor across the series field (series and compound)")
+        c["external_resistance"] = labelled_slider("external_resistance", "armature resistor [Ω]",
+                                                   ini["external_resistance"], 0.0, max(20.0 * r_a, 1.0),
+                                                   tooltip="resistance in series with the armature")
+        c["series_share"] = labelled_slider("series_share", "compound series share [-]", ini["series_share"], 0.05,
+                                            0.95, step=0.01,
+                                            tooltip="series winding's share of the excitation at rated load")
+        c["winding_temperature"] = labelled_slider("winding_temperature", "winding temperature [°C]",
+                                                   ini["winding_temperature"], -20.0, 180.0, step=1.0)
+        c["magnet_temperature"] = labelled_slider("magnet_temperature", "magnet temperature [°C]",
+                                                  ini["magnet_temperature"], -20.0, 150.0, step=1.0)
+        c["field_rheostat"].disabled = not fields
+        c["diverter"].disabled = not series or not ini["diverter_on"]
+        c["diverter_on"].disabled = not series
+        c["series_share"].disabled = self._spec is None or not any(
+            getattr(m, "kind", None) for m in self._base.values() if hasattr(m, "series_turns")
+            and hasattr(m, "field_turns"))
+        c["magnet_temperature"].disabled = not magnets
+        self.controls = c
+        for key, ctl in c.items():
+            ctl.observe(self._on_control, names="value")
+        self.reset_button = w.Button(description="back to the scenario", icon="undo",
+                                     tooltip="reset every setting and tick box to the scenario's values")
+        self.reset_button.add_class("kit-reset")
+        self.reset_button.on_click(lambda _: self._guard("reset", self.reset))
+
+        # load
+        self.load_editor = LoadEditor(load, reference=reference, units=units)
+        self.load_editor.on_change(lambda load, browser: self._coalescer.request(defer=browser))
+
+        # chart
+        self.view = w.Dropdown(options=VIEW_CHOICES, value=view, description="chart",
+                               style={"description_width": "45px"}, layout=w.Layout(width="300px"))
+        self.view.add_class("kit-view")
+        self.units = w.ToggleButtons(options=[("SI", "si"), ("US customary", "us")], value=units,
+                                     style={"button_width": "110px"})
+        self.units.add_class("kit-units")
+        self.canvas, figure = self._make_canvas()
+        self.chart = LiveChart(figure, view=view, units=units)
+        self.view.observe(lambda ch: self._guard("view", lambda: self._on_view(ch)), names="value")
+        self.units.observe(lambda ch: self._guard("units", lambda: self._on_units(ch)), names="value")
+
+        # panels
+        self.results_panel = w.HTML("", layout=w.Layout(overflow="auto"))
+        self.results_panel.add_class("kit-results")
+        self.cautions_panel = w.HTML("")
+        self.cautions_panel.add_class("kit-cautions")
+        self.status_line = w.HTML("")
+        self.status_line.add_class("kit-status")
+        self.export_folder = w.Text(value=export_folder, description="folder",
+                                    style={"description_width": "45px"}, layout=w.Layout(width="360px"))
+        self.export_folder.add_class("kit-export-folder")
+        self.export_button = w.Button(description="export chart and table", icon="download",
+                                      tooltip="PNG and SVG at 300 dpi, and the table as CSV, into the folder")
+        self.export_button.add_class("kit-export")
+        self.export_button.on_click(lambda _: self._guard("export", self.export))
+
+        self.widget = self._layout()
+        self.widget.add_class("kit-comparer")
+        self._recompute()
+
+    # ------------------------------------------------------------------ construction
+    def _make_canvas(self):
+        import matplotlib.pyplot as plt
+        from ipympl.backend_nbagg import Canvas, FigureManager
+        from matplotlib.figure import Figure
+
+        # Made without pyplot's figure registry (so nothing else displays it) and given an
+        # ipympl canvas whatever backend the notebook uses.
+        with plt.ioff(), warnings.catch_warnings():
+            # ipympl's toolbar passes its canvas on to traitlets, which warns about it
+            warnings.filterwarnings("ignore", "Passing unrecognized arguments", DeprecationWarning)
+            fig = Figure(figsize=_FIGSIZE_IN, dpi=100)
+            canvas = Canvas(fig)
+            FigureManager(canvas, 0)
+        canvas.header_visible = False
+        canvas.footer_visible = False
+        canvas.toolbar_visible = False
+        canvas.resizable = False
+        canvas.layout = w.Layout(width=f"{int(_FIGSIZE_IN[0] * 100)}px", height=f"{int(_FIGSIZE_IN[1] * 100)}px")
+        canvas.add_class("kit-figure")
+        return canvas, fig
+
+    def _layout(self):
+        head = w.HTML(f'<div style="font-size:17px;font-weight:bold;color:#16324f">'
+                      f'{self.title or "Field connections compared on one load"}</div>'
+                      '<div style="font-size:11px;color:#555">engineering estimates; see the cautions below</div>')
+        c = self.controls
+        left = w.VBox([
+            _section("Connections"), self._candidate_box,
+            _section("Settings"), c["voltage"], c["field_rheostat"], c["external_resistance"], c["diverter_on"],
+            c["diverter"], c["series_share"], c["winding_temperature"], c["magnet_temperature"], self.reset_button,
+            _section("Load"), self.load_editor.widget,
+        ], layout=w.Layout(width="420px", padding="0 12px 0 0"))
+        right = w.VBox([w.HBox([self.view, self.units]), self.canvas, self.status_line],
+                       layout=w.Layout(width="690px"))
+        bottom = w.VBox([
+            _section("Operating points and figures"), self.results_panel,
+            _section("Cautions"), self.cautions_panel,
+            _section("Export"), w.HBox([self.export_folder, self.export_button]),
+        ])
+        return w.VBox([head, w.HBox([left, right]), bottom], layout=w.Layout(width="1120px"))
+
+    @classmethod
+    def from_scenario(cls, scenario, **kwargs) -> "Comparer":
+        """A comparer on a scenario (see :mod:`dcchar.files.scenario`): its machines, its first load,
+        its control settings and its title."""
+        machines = scenario.machines()
+        loads = scenario.loads()
+        if hasattr(loads, "values"):
+            loads = list(loads.values())
+        loads = list(loads)
+        if not loads:
+            raise ParameterError("scenario.loads", loads, "a scenario with at least one load")
+        spec = getattr(scenario, "family_spec", None)
+        spec = spec() if callable(spec) else spec
+        kwargs.setdefault("title", getattr(scenario, "title", "") or "")
+        if spec is not None:
+            kwargs.setdefault("family_spec", spec)
+        settings = getattr(scenario, "settings", None)
+        settings = settings() if callable(settings) else settings
+        return cls(machines, loads[0], settings, **kwargs)
+
+    # ------------------------------------------------------------------ state
+    def machines(self) -> dict:
+        """The candidate machines at the current series share (all of them, ticked or not)."""
+        share = float(self.controls["series_share"].value)
+        if self._spec is None or share == self._share0:
+            return self._base
+        key = round(share, 9)
+        if key not in self._families:
+            from ..studies.rating import equal_rating_family
+
+            fam = equal_rating_family(**{**self._spec, "series_share": share})
+            self._families[key] = {k: fam[k] for k in self._base if k in fam}
+        return self._families[key]
+
+    def selected(self) -> dict:
+        """The ticked candidates at the current series share."""
+        return {k: m for k, m in self.machines().items() if self.candidates[k].value}
+
+    def current_settings(self) -> ControlSettings:
+        """The ControlSettings the sliders stand for now.
+
+        A voltage or temperature slider that still shows its starting value stands for the
+        scenario's own value (None: each machine's rated voltage or own temperature).
+        """
+        c, sc, ini = self.controls, self._scenario, self._initial
+
+        def same_or(name, field):
+            v = float(c[name].value)
+            return None if (getattr(sc, field) is None and v == ini[name]) else v
+
+        return ControlSettings(
+            voltage=same_or("voltage", "voltage"),
+            field_rheostat=float(c["field_rheostat"].value) if not c["field_rheostat"].disabled else 0.0,
+            diverter_resistance=float(c["diverter"].value) if c["diverter_on"].value and not c["diverter_on"].disabled
+            else math.inf,
+            external_resistance=float(c["external_resistance"].value),
+            winding_temperature=same_or("winding_temperature", "winding_temperature"),
+            magnet_temperature=same_or("magnet_temperature", "magnet_temperature"),
+        )
+
+    @property
+    def load(self):
+        """The load in use (the load editor's last good load)."""
+        return self.load_editor.load
+
+    # ------------------------------------------------------------------ actions
+    def reset(self):
+        """Every slider, tick box and the diverter back to the scenario's values; one update."""
+        with self._hold():
+            for key, value in self._initial.items():
+                self.controls[key].value = value
+            for cb in self.candidates.values():
+                cb.value = True
+        self._coalescer.request()
+
+    def refresh(self):
+        """Compare again now (also runs any update still waiting for its quiet time)."""
+        self._coalescer.request()
+
+    def export(self, folder=None) -> list:
+        """Write the current chart (PNG and SVG at 300 dpi, one page column wide, with a title
+        block) and the results table (CSV) into ``folder`` (default: the folder box), created if
+        missing. Returns the paths written and reports them in the status line."""
+        from ..charts.curves import draw_view
+        from ..charts.export import save_figure
+        from ..charts.style import title_block
+        from ..files.tables import write_table_csv
+
+        comp = self.comparison
+        if comp is None:
+            raise ParameterError("comparison", None, "a comparison to export (the first update failed)")
+        text = self.export_folder.value if folder is None else folder
+        if not str(text).strip():
+            raise ParameterError("export folder", text, "a folder name")
+        out = Path(str(text)).expanduser()
+        out.mkdir(parents=True, exist_ok=True)
+        view, units = self.chart.view, self.units.value
+        stem = (_slug(self.title) + "-" if self.title and _slug(self.title) else "") + view
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", RuntimeWarning)  # a table load asked beyond its range
+            art = draw_view(view, comp.characteristics(), comp.load, comp.operating(), units=units)
+        title_block(art["figure"], self.title or "Field connections compared", self._scenario_line(comp))
+        written = list(save_figure(art["figure"], out / stem, formats=("png", "svg"), dpi=300))
+        written.append(Path(write_table_csv(comp, out / f"{stem}-table.csv", units=units)))
+        self.status_line.value = status_html("wrote " + ", ".join(p.name for p in written) + f" to {out}")
+        return written
+
+    # ------------------------------------------------------------------ callbacks
+    def _on_control(self, change):
+        if change["owner"] is self.controls["diverter_on"]:
+            self.controls["diverter"].disabled = not change["new"] or self.controls["diverter_on"].disabled
+        if self._held:
+            return
+        self._coalescer.request(defer=from_front_end(change))
+
+    def _on_view(self, change):
+        self.chart.set_view(change["new"])
+
+    def _on_units(self, change):
+        units = change["new"]
+        self.load_editor.set_units(units)
+        self.chart.set_units(units)
+        if self.comparison is not None:
+            self.results_panel.value = results_html(self.comparison, units, self._styles_now(self.comparison))
+
+    @contextlib.contextmanager
+    def _hold(self):
+        self._held = True
+        try:
+            yield
+        finally:
+            self._held = False
+
+    def _guard(self, what, fn):
+        try:
+            return fn()
+        except Exception as exc:
+            self._report(exc, what)
+
+    def _report(self, exc, what="update"):
+        self.last_error = exc
+        self.status_line.value = error_html(f"{what} failed; the last good results stay on screen", exc)
+
+    def _styles_now(self, comp):
+        return dict(zip(comp.candidates, styles_for([c.machine for c in comp.candidates.values()])))
+
+    def _scenario_line(self, comp) -> str:
+        volts = sorted({c.voltage for c in comp.candidates.values()})
+        v = f"{volts[0]:g} V" if len(volts) == 1 else f"{volts[0]:g}-{volts[-1]:g} V"
+        kind = getattr(comp.load, "kind", "load")
+        return f"{kind} load, {v} supply"
+
+    def _recompute(self):
+        t0 = time.perf_counter()
+        machines = self.selected()
+        if not machines:
+            self.status_line.value = status_html("tick at least one connection to compare")
+            return
+        settings = self.current_settings()
+        load = self.load_editor.load
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            comp = compare(machines, load, settings)
+            t1 = time.perf_counter()
+            self.chart.update(comp.characteristics(), load=comp.load, operating=comp.operating())
+        t2 = time.perf_counter()
+        self.comparison = comp
+        self.last_error = None
+        units = self.units.value
+        self.results_panel.value = results_html(comp, units, self._styles_now(comp))
+        self.cautions_panel.value = cautions_html(comp)
+        t3 = time.perf_counter()
+        self.timings = {"compare": t1 - t0, "chart": t2 - t1, "panels": t3 - t2, "total": t3 - t0}
+        notes = sorted({str(m.message) for m in caught})
+        text = (f"{len(machines)} connection{'s' if len(machines) != 1 else ''} on {getattr(load, 'kind', 'load')}"
+                f" load; updated in {1e3 * (t3 - t0):.0f} ms")
+        if notes:
+            text += " — note: " + "; ".join(notes)
+        self.status_line.value = status_html(text)
+
+    # ------------------------------------------------------------------ display
+    def _repr_mimebundle_(self, **kwargs):
+        return self.widget._repr_mimebundle_(**kwargs)
