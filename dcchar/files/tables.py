@@ -1,7 +1,8 @@
 """Tables for people: the comparison rows converted to display units, with headings that carry them.
 
 The widget kit's results table and the report's CSV, Markdown and HTML tables all come from
-:func:`display_table`, so they show the same numbers.
+:func:`display_table`, so they show the same numbers; :func:`table_markdown` and
+:func:`table_html` format the cells with :func:`format_value`.
 """
 
 from __future__ import annotations
@@ -13,7 +14,7 @@ import math
 from ..models.units import display_units
 from ..studies.comparison import TABLE_COLUMNS
 
-__all__ = ["display_table", "format_value", "table_csv", "write_table_csv"]
+__all__ = ["display_table", "format_value", "table_csv", "write_table_csv", "table_markdown", "table_html"]
 
 _SPEED_RPM = {"rad/s"}
 
@@ -87,3 +88,44 @@ def write_table_csv(comparison, path, units: str = "si", columns=None):
 
     headings, rows = display_table(comparison, units, columns)
     return atomic_write_text(path, table_csv(headings, rows))
+
+
+def table_markdown(headings, rows, digits: int = 4) -> str:
+    """A Markdown (pipe) table: cells from :func:`format_value`, ``|`` escaped, numbers right-aligned.
+
+    Examples
+    --------
+    >>> print(table_markdown(["a", "b [A]"], [["x|y", 1.23456]]), end="")
+    | a | b [A] |
+    |:--|--:|
+    | x\\|y | 1.235 |
+    """
+    def cell(v):
+        return format_value(v, digits).replace("|", "\\|").replace("\n", " ")
+
+    numeric = [bool(rows) and all(isinstance(r[i], (int, float)) and not isinstance(r[i], bool) for r in rows)
+               for i in range(len(headings))]
+    lines = ["| " + " | ".join(cell(h) for h in headings) + " |",
+             "|" + "|".join("--:" if n else ":--" for n in numeric) + "|"]
+    lines += ["| " + " | ".join(cell(v) for v in row) + " |" for row in rows]
+    return "\n".join(lines) + "\n"
+
+
+def table_html(headings, rows, digits: int = 4, caption: str | None = None) -> str:
+    """An HTML ``<table>``: cells from :func:`format_value`, text escaped, numbers in ``class="num"`` cells."""
+    import html
+
+    out = ["<table>"]
+    if caption:
+        out.append(f"<caption>{html.escape(caption)}</caption>")
+    out.append("<thead><tr>" + "".join(f"<th>{html.escape(str(h))}</th>" for h in headings) + "</tr></thead>")
+    out.append("<tbody>")
+    for row in rows:
+        cells = []
+        for v in row:
+            num = isinstance(v, (int, float)) and not isinstance(v, bool)
+            attr = ' class="num"' if num else ""
+            cells.append(f"<td{attr}>{html.escape(format_value(v, digits))}</td>")
+        out.append("<tr>" + "".join(cells) + "</tr>")
+    out.append("</tbody></table>")
+    return "\n".join(out) + "\n"
