@@ -1,0 +1,244 @@
+"""Vectorized evaluation of many machines at once: the engine behind the tolerance study.
+
+Private to :mod:`dcchar.studies.selection` and :mod:`dcchar.studies.tolerance`. Samples run
+down the rows and armature currents across the columns of one array: every circuit value of
+:data:`dcchar.models.symbolic.CIRCUIT_PARAMETERS`, the supply voltage and a factor on kphi may be
+an array of shape (n, 1), and the lambdified kernels of :mod:`dcchar.models.symbolic` broadcast
+them against currents of shape (n, m) or (1, m). The operating points are found the way
+:func:`dcchar.studies.control.control_sweep` finds them: brackets on the grid of
+:func:`dcchar.studies.operating.operating_points`, the first one met from standstill, refined by
+the vectorized Anderson-Bjorck regula falsi of that module.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .._bracketing import _Evaluator, _sign_change_cells, _unit_grid
+from ..control import _anderson_bjorck
+
+__all__ = []
+
+
+class ScaledEvaluator(_Evaluator):
+    """An evaluator whose kphi is multiplied by ``scale`` (scalar or (n, 1) array)."""
+
+    def __init__(self, machine, voltage, overrides=None, scale=1.0):
+        super().__init__(machine, voltage, overrides)
+        self.scale = scale
+
+    def take(self, rows):
+        ev = super().take(rows)
+        ev.__class__ = ScaledEvaluator  # the base class builds a plain evaluator
+        s = self.scale
+        ev.scale = np.asarray(s)[rows, 0] if np.ndim(s) == 2 else s
+        return ev
+
+    def kphi(self, Ia):
+        F = self.excitation(Ia)[0]
+        return self.machine._kphi(F, Ia) * self.scale
+
+    def speed_torque(self, Ia):
+        from .._bracketing import _speed_torque_kernel
+
+        return _speed_torque_kernel(self.connection)(Ia, self.kphi(Ia), self.voltage, *self.circuit, *self.loss)
+
+    def full_state(self, Ia):
+        from ...models import symbolic
+
+        F, If, Is, IL = self.excitation(Ia)
+        kphi = self.machine._kphi(F, Ia) * self.scale
+        with np.errstate(all="ignore"):
+            out = symbolic.output_kernel(self.connection)(Ia, kphi, self.voltage, *self.circuit, *self.loss)
+        shape = np.shape(Ia)
+        d = {k: np.broadcast_to(v, shape) for k, v in zip(symbolic.OUTPUTS, out)}
+        d.update(field_current=np.broadcast_to(If, shape), supply_current=np.broadcast_to(IL, shape),
+                 kphi=np.broadcast_to(kphi, shape))
+        return d
+
+    def rows(self) -> int:
+        n = 1
+        for v in (self.voltage, self.scale, *self.circuit):
+            if np.ndim(v):
+                n = max(n, np.shape(v)[0])
+        return n
+
+
+def settle(ev, load_torque, breakaway, safe_speed, grid: int = 112, tracked: bool = False):
+    """The operating point met from rest, for every row of ``ev``.
+
+    With ``tracked=True``: instead the point a running drive follows as a setting changes, the
+    motoring point of least armature current (the first bracket walking up from zero current).
+
+    Parameters
+    ----------
+    ev : ScaledEvaluator
+    load_torque : callable
+        Load torque [N*m] at motor speeds [rad/s] (vectorized).
+    breakaway : float
+        [N*m]
+    safe_speed : float
+        [rad/s]; inf searches the whole grid (a no-load speed beyond any limit).
+
+    Returns
+    -------
+    dict of ndarray (n,)
+        ``speed``, ``torque``, ``armature_current``, ``supply_current``, ``input_power``,
+        ``output_power``, ``efficiency``, ``stable``, ``beyond`` (some grid node is beyond the
+        safe speed) and ``reason`` ("" motoring or generating
+        point, "cannot start", "runs away"). nan where there is no point.
+    """
+    n = ev.rows()
+    i0 = np.broadcast_to(np.asarray(ev.standstill_current(), dtype=float).reshape(-1, 1), (n, 1))
+    x, jumps = _unit_grid(int(grid))
+    im = jumps[1]
+    Ia = i0 * x
+    with np.errstate(all="ignore"):
+        w, t = ev.speed_torque(Ia)
+        w, t = np.broadcast_to(w, Ia.shape), np.broadcast_to(t, Ia.shape)
+        f = t - np.asarray(load_torque(w), dtype=float)
+        finite = np.isfinite(w) & np.isfinite(f)
+        valid = finite & (np.abs(w) <= safe_speed)
+    sc = _sign_change_cells(f, finite, valid, jumps)
+    rows = np.arange(n)
+    up = ~(w[:, im] > 0)
+    fwd_node, bwd_node = np.where(up, im + 1, im), np.where(up, im, im + 1)
+    t_start, f_start, f_back = t[rows, fwd_node], f[rows, fwd_node], f[rows, bwd_node]
+    live = i0[:, 0] > 0
+    starts = (t_start > breakaway) & (f_start > 0) & live
+    back = ~starts & (f_back < 0) & live
+    ev_d = sc[:, :im] | ~valid[:, :im]
+    has_d = ev_d.any(axis=1)
+    cd = im - 1 - np.argmax(ev_d[:, ::-1], axis=1)
+    ev_u = sc[:, im + 1:] | ~valid[:, im + 2:]
+    has_u = ev_u.any(axis=1)
+    cu = im + 1 + np.argmax(ev_u, axis=1)
+    down = (starts & ~up) | (back & up)
+    ok_d = down & has_d & sc[rows, cd]
+    ok_u = ~down & (starts | back) & has_u & sc[rows, np.minimum(cu, sc.shape[1] - 1)]
+    cell = np.where(down, cd, cu)
+    found = ok_d | ok_u
+    if tracked:
+        lo = jumps[0] + 1
+        fwd = valid & (w > 0)
+        mot = sc[:, lo:im] & fwd[:, lo:im] & fwd[:, lo + 1:im + 1]
+        found = mot.any(axis=1) & live
+        cell = lo + np.argmax(mot, axis=1)
+        starts = live.copy()
+        back = np.zeros(n, bool)
+    sel = np.flatnonzero(found)
+    reason = np.full(n, "", dtype=object)
+    reason[(starts | back) & ~found] = "runs away"
+    reason[~starts & ~back] = "cannot start"
+    reason[back & found] = "cannot start"
+    keys = ("speed", "torque", "armature_current", "supply_current", "input_power", "output_power", "efficiency",
+            "stability_slope")
+    out = {k: np.full(n, np.nan) for k in keys}
+    if sel.size:
+        c = cell[sel]
+        a, b = Ia[sel, c], Ia[sel, c + 1]
+        fa, fb = f[sel, c], f[sel, c + 1]
+        sub = ev.take(sel)
+
+        def fun(i):
+            with np.errstate(all="ignore"):
+                ww, tt = sub.speed_torque(i)
+                return tt - np.asarray(load_torque(ww), dtype=float)
+
+        scale = np.maximum(np.abs(t_start[sel]), 1e-12)
+        r, _, _ = _anderson_bjorck(fun, a, b, fa, fb, 1e-13 * i0[sel, 0], 1e-13 * scale)
+        h = 1e-6 * i0[sel, 0]
+        with np.errstate(all="ignore"):
+            st = sub.full_state(r)
+            wp, tp = sub.speed_torque(r + h)
+            wm, tm = sub.speed_torque(r - h)
+            slope = (tp - tm) / (wp - wm)
+            lslope = (np.asarray(load_torque(st["speed"] + 1e-6), float)
+                      - np.asarray(load_torque(st["speed"] - 1e-6), float)) / 2e-6
+        p_in, p_out = st["input_power"], st["output_power"]
+        out["speed"][sel] = st["speed"]
+        out["torque"][sel] = st["shaft_torque"]
+        out["armature_current"][sel] = r
+        out["supply_current"][sel] = st["supply_current"]
+        out["input_power"][sel] = p_in
+        out["output_power"][sel] = p_out
+        with np.errstate(all="ignore"):
+            out["efficiency"][sel] = np.where((p_in > 0) & (p_out > 0), p_out / p_in,
+                                              np.where((p_in < 0) & (p_out < 0), p_in / p_out, np.nan))
+        out["stability_slope"][sel] = slope - lslope
+        far = np.zeros(n, bool)
+        # beyond the safe speed, or a jump through zero (kphi changing sign) rather than a root
+        res = np.abs(np.asarray(st["shaft_torque"], float) - np.asarray(load_torque(st["speed"]), float))
+        far[sel] = ~(np.abs(st["speed"]) <= safe_speed) | ~(res <= 1e-7 * np.maximum(scale, np.abs(st["shaft_torque"])))
+        for k in keys:
+            out[k][far] = np.nan
+        reason[far] = "runs away"
+    out["beyond"] = (~(np.isfinite(w) & (np.abs(w) <= safe_speed))).any(axis=1)
+    out["stable"] = np.where(np.isnan(out["stability_slope"]), False, out["stability_slope"] < 0)
+    out["reason"] = reason.astype(str)
+    return out
+
+
+def interp_rows(xp, fp, x):
+    """Linear interpolation row by row, without a Python loop over rows.
+
+    ``xp`` (n, m) must increase along each row where it is finite (nan elsewhere, only at the
+    ends of a row's increasing run); ``x`` is (n, k) or (k,). Outside a row's range: nan.
+    """
+    xp = np.asarray(xp, dtype=float)
+    fp = np.asarray(fp, dtype=float)
+    n, m = xp.shape
+    x = np.broadcast_to(np.asarray(x, dtype=float), (n, np.shape(x)[-1]))
+    ok = np.isfinite(xp) & np.isfinite(fp)
+    lo = np.where(ok, xp, np.inf).min(axis=1, keepdims=True)
+    hi = np.where(ok, xp, -np.inf).max(axis=1, keepdims=True)
+    span = np.where(hi > lo, hi - lo, 1.0)
+    with np.errstate(invalid="ignore"):
+        key = np.where(ok, (xp - lo) / span, 2.0)  # bad nodes sort to the end of their row
+        key = np.minimum(key, 2.0) * 0.25 + np.arange(n)[:, None]
+        q = np.clip((x - lo) / span, 0.0, 1.0) * 0.25 + np.arange(n)[:, None]
+    if np.all(key[:, 1:] >= key[:, :-1]):  # already in order (the usual case): no sort
+        order = np.broadcast_to(np.arange(m), (n, m)) + (np.arange(n) * m)[:, None]
+    else:
+        order = np.argsort(key, axis=1, kind="stable") + (np.arange(n) * m)[:, None]  # sorted within rows
+    order = order.ravel()
+    flat_sorted = key.ravel()[order]  # rows occupy [row, row + 0.5]: globally sorted
+    pos = np.searchsorted(flat_sorted, q.ravel(), side="right").reshape(q.shape)
+    row0 = (np.arange(n) * m)[:, None]
+    pos = np.clip(pos, row0 + 1, row0 + m - 1)
+    j1 = order[pos]
+    j0 = order[pos - 1]
+    x0, x1 = xp.ravel()[j0], xp.ravel()[j1]
+    f0, f1 = fp.ravel()[j0], fp.ravel()[j1]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        t = np.where(x1 > x0, (x - x0) / (x1 - x0), 0.0)
+        y = f0 + t * (f1 - f0)
+    inside = (x >= lo) & (x <= hi) & np.isfinite(x0) & np.isfinite(x1)
+    return np.where(inside, y, np.nan)
+
+
+def increasing_prefix(values):
+    """Mask of the leading run of each row where ``values`` strictly increase and are finite."""
+    v = np.asarray(values, dtype=float)
+    with np.errstate(invalid="ignore"):
+        step = np.concatenate([np.ones((v.shape[0], 1), bool), np.diff(v, axis=1) > 0], axis=1) & np.isfinite(v)
+    return np.cumprod(step, axis=1).astype(bool)
+
+
+def run_up_time(inertia, speed, accelerating_torque):
+    """Time along speed grids (n, m), T_acc linear between nodes, 1/T_acc integrated exactly.
+
+    The formula of :func:`dcchar.studies.starter_steps.acceleration_time_curve`, row by row:
+    dt = J*dw*ln(T1/T0)/(T1 - T0). Rows where T_acc <= 0 somewhere give inf. [s]
+    """
+    w = np.asarray(speed, dtype=float)
+    ta = np.asarray(accelerating_torque, dtype=float)
+    t0, t1 = ta[:, :-1], ta[:, 1:]
+    dw = np.diff(w, axis=1)
+    diff = t1 - t0
+    same = np.abs(diff) <= 1e-12 * np.maximum(t0, t1)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        dt = np.where(same, dw / t0, dw * np.log(t1 / t0) / np.where(same, 1.0, diff))
+    total = np.asarray(inertia) * dt.sum(axis=1)
+    bad = ~(np.all(ta > 0, axis=1) & np.all(np.isfinite(ta), axis=1))
+    return np.where(bad, np.inf, total)
