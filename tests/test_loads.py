@@ -352,3 +352,22 @@ def test_slope_is_the_derivative_of_torque(load, w):
     s = float(load.slope(w))
     t = float(load.torque(w))
     assert abs(s - fd) <= 1e-5 * abs(s) + 1e-7 * (1 + abs(t)), (load, w, s, fd)
+
+
+@settings(max_examples=200, deadline=None)
+@given(w=st.floats(-400.0, 400.0, allow_nan=False), ratio=st.floats(1.0, 30.0), eff=st.floats(0.5, 1.0))
+def test_float_fast_path_equals_array_path(w, ratio, eff):
+    """The float path used inside root finders gives exactly what the vectorized path gives."""
+    from dcchar.models.loads import ConstantTorque, Conveyor, Fan, Hoist, Linear
+
+    g = Gearing(ratio, eff)
+    loads = [ConstantTorque(40.0, gearing=g), ConstantTorque(40.0, gearing=g, active=True),
+             Conveyor(friction_pull=900.0, pulley_diameter=0.5, lift_pull=300.0, gearing=g),
+             Hoist(load_mass=800.0, drum_diameter=0.4, reeving=2, gearing=g),
+             Fan.from_duty(120.0, torque=60.0, static_torque=3.0, gearing=g), Linear(0.2, 5.0, gearing=g)]
+    for load in loads:
+        t_fast, s_fast = load.torque(float(w)), load.slope(float(w))
+        assert isinstance(t_fast, float)
+        t_arr, s_arr = load.torque(np.array([w])), load.slope(np.array([w]))
+        assert t_fast == pytest.approx(float(t_arr[0]), rel=1e-14, abs=1e-14)
+        assert s_fast == pytest.approx(float(s_arr[0]), rel=1e-14, abs=1e-14)

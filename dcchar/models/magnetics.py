@@ -13,6 +13,7 @@ from the field's, even in ``Ia``.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -31,6 +32,7 @@ class Magnetization:
 
     residual_emf: float
     reference_speed: float
+    _scalar_ok = False  # True where _f is plain arithmetic that also works on a float
 
     def emf(self, excitation):
         """Open-circuit EMF at the reference speed, E0(F). [V]
@@ -40,6 +42,9 @@ class Magnetization:
         excitation : array_like
             Net field excitation F. [A-turns per pole]
         """
+        if isinstance(excitation, float) and self._scalar_ok:  # fast path for root finders
+            odd = math.copysign(self._f(abs(excitation)), excitation) if excitation else 0.0
+            return float(self.residual_emf) + odd
         F = np.asarray(excitation, dtype=float)
         return self.residual_emf + np.sign(F) * self._f(np.abs(F))
 
@@ -94,6 +99,8 @@ class LinearMagnetization(Magnetization):
         positive("reference_speed", self.reference_speed)
         nonnegative("residual_emf", self.residual_emf)
 
+    _scalar_ok = True
+
     def _f(self, F):
         return self.slope * F
 
@@ -145,6 +152,8 @@ class Froehlich(Magnetization):
         positive("b", self.b)
         positive("reference_speed", self.reference_speed)
         nonnegative("residual_emf", self.residual_emf)
+
+    _scalar_ok = True
 
     def _f(self, F):
         return self.a * F / (self.b + F)
@@ -303,6 +312,9 @@ class QuadraticArmatureReaction(ArmatureReaction):
         nonnegative("quadratic", self.quadratic)
 
     def excitation(self, armature_current):
+        if isinstance(armature_current, float):  # fast path for root finders
+            i = abs(armature_current)
+            return self.linear * i + self.quadratic * i * i
         i = np.abs(np.asarray(armature_current, dtype=float))
         return self.linear * i + self.quadratic * i * i
 

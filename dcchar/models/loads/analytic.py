@@ -13,6 +13,7 @@ from typing import ClassVar
 import numpy as np
 
 from ...errors import ParameterError
+from ..units import RPM
 from ..validation import in_range, nonnegative, positive, real
 from .base import STANDARD_GRAVITY, Gearing, Load, _check_gear, _odd, _speed_array
 
@@ -58,9 +59,12 @@ class ConstantTorque(Load):
         sign = 1.0 if self.active else _odd(w_l)
         return self.load_torque * sign * np.ones_like(w_l), np.zeros_like(w_l)
 
+    def _scalar_side(self, w_l):
+        return self.load_torque * (1.0 if self.active or w_l >= 0 else -1.0), 0.0
+
     def describe(self):
         how = "active (same sign both ways)" if self.active else "passive (opposes motion)"
-        return self._geared(f"constant torque {self.load_torque:g} N*m, {how}")
+        return self._geared(f"constant torque {self.load_torque:.4g} N*m, {how}")
 
 
 @dataclass(frozen=True)
@@ -125,6 +129,10 @@ class Conveyor(Load):
     def _load_side(self, w_l):
         r = self.pulley_diameter / 2
         return r * (self.friction_pull * _odd(w_l) + self.lift_pull), np.zeros_like(w_l)
+
+    def _scalar_side(self, w_l):
+        r = self.pulley_diameter / 2
+        return r * (self.friction_pull * (1.0 if w_l >= 0 else -1.0) + self.lift_pull), 0.0
 
     def _extra_inertia(self):
         return self._gear.refer_inertia(self.moving_mass * (self.pulley_diameter / 2) ** 2)
@@ -232,6 +240,9 @@ class Hoist(Load):
     def _load_side(self, w_l):
         return np.full_like(w_l, self.drum_torque), np.zeros_like(w_l)
 
+    def _scalar_side(self, w_l):
+        return self.drum_torque, 0.0
+
     @property
     def load_inertia(self) -> float:
         return self.drum_inertia
@@ -299,9 +310,15 @@ class Quadratic(Load):
         t = _odd(w_l) * (self.static_torque + c * x * x)
         return t, 2.0 * c * np.abs(w_l) / self.rated_speed**2
 
+    def _scalar_side(self, w_l):
+        c = self.rated_torque - self.static_torque
+        x = w_l / self.rated_speed
+        t = (self.static_torque + c * x * x) * (1.0 if w_l >= 0 else -1.0)
+        return t, 2.0 * c * abs(w_l) / self.rated_speed**2
+
     def describe(self):
-        return self._geared(f"{self.kind}: {self.rated_torque:g} N*m at {self.rated_speed:g} rad/s, "
-                            f"square law, {self.static_torque:g} N*m static")
+        return self._geared(f"{self.kind}: {self.rated_torque:.4g} N*m at {self.rated_speed / RPM:.4g} r/min, "
+                            f"square law, {self.static_torque:.3g} N*m static")
 
 
 @dataclass(frozen=True)
@@ -385,6 +402,9 @@ class Linear(Load):
     def _load_side(self, w_l):
         return self.offset + self.coefficient * w_l, np.full_like(w_l, self.coefficient)
 
+    def _scalar_side(self, w_l):
+        return self.offset + self.coefficient * w_l, self.coefficient
+
     def describe(self):
         return self._geared(f"linear: {self.offset:g} N*m + {self.coefficient:g} N*m*s/rad x speed")
 
@@ -430,7 +450,7 @@ class ConstantPower(Load):
         return t, d
 
     def describe(self):
-        return self._geared(f"constant power {self.power:g} W above {self.min_speed:g} rad/s")
+        return self._geared(f"constant power {self.power:.4g} W above {self.min_speed / RPM:.4g} r/min")
 
 
 @dataclass(frozen=True)

@@ -120,8 +120,30 @@ class Load:
     def _gear(self) -> Gearing:
         return getattr(self, "gearing", None) or _DIRECT
 
+    def _scalar_side(self, w_l):
+        """``_load_side`` for one float, in plain Python (None where a subclass has no fast path)."""
+        return None
+
+    def _scalar(self, w):
+        # fast path for root finders: one float in, one (torque, slope) float pair out
+        g = self._gear
+        side = self._scalar_side(w / g.ratio)
+        if side is None:
+            return None
+        t_l, d_l = side
+        p = t_l * w
+        f = 1.0 / (g.ratio * g.efficiency) if p > 0 else (g.efficiency / g.ratio if p < 0 else 1.0 / g.ratio)
+        return t_l * f, f * d_l / g.ratio
+
     def torque(self, speed):
-        """Load torque at the motor shaft [N*m] at motor speed ``speed`` [rad/s] (vectorized)."""
+        """Load torque at the motor shaft [N*m] at motor speed ``speed`` [rad/s] (vectorized).
+
+        A Python float gives a float (a fast path for root finders); anything else an array.
+        """
+        if isinstance(speed, float):
+            fast = self._scalar(speed)
+            if fast is not None:
+                return fast[0]
         w = _speed_array(speed)
         g = self._gear
         t_l, _ = self._load_side(w / g.ratio)
@@ -135,6 +157,10 @@ class Load:
         Analytic, within each region of one power-flow direction; where the gear loss switches
         side (at standstill for an active load) the step in torque is not part of the slope.
         """
+        if isinstance(speed, float):
+            fast = self._scalar(speed)
+            if fast is not None:
+                return fast[1]
         w = _speed_array(speed)
         g = self._gear
         t_l, d_l = self._load_side(w / g.ratio)
