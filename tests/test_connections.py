@@ -246,3 +246,15 @@ def test_nan_current_is_refused():
 def test_magnetization_must_be_a_curve():
     with pytest.raises(ParameterError, match="magnetization"):
         Shunt(armature_resistance=0.5, magnetization=1.5, field_resistance=100.0)
+
+
+def test_short_shunt_locked_rotor_current_makes_emf_zero():
+    # the standstill current is where the back EMF is zero, the shunt field's share through the
+    # series field included (short-shunt circuit relation, common practice)
+    mag = LinearMagnetization(slope=0.02, reference_speed=120.0, residual_emf=10.0)
+    m = Compound(armature_resistance=0.1, series_resistance=0.05, magnetization=mag, field_turns=800.0,
+                 field_resistance=100.0, series_turns=4.0, shunt_connection="short", brush_drop=2.0)
+    i_lr = m.locked_rotor_current(230.0)
+    c = m.characteristic(230.0, [i_lr])
+    assert_allclose(c.emf, 0.0, atol=1e-9)
+    assert_allclose(c.speed, 0.0, atol=1e-9)

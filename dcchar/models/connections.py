@@ -516,6 +516,21 @@ class Compound(Machine):
     def loop_resistance(self):
         return super().loop_resistance() + self._hot(self.series_resistance) * self.diverter_share
 
+    def locked_rotor_current(self, voltage=None) -> float:
+        """Armature current at standstill (E = 0). [A]
+
+        Short shunt: the shunt field current also flows in the series field, so with
+        R_se = R_s*d, R_f the shunt circuit and I_f = (V - I_a*R_se)/(R_f + R_se), E = 0 gives
+        I_a = (V - V_b - R_se*V/(R_f + R_se)) / (R_a + R_x + R_se*R_f/(R_f + R_se)).
+        """
+        if self.shunt_connection == "long":
+            return super().locked_rotor_current(voltage)
+        V = self.default_voltage() if voltage is None else real("voltage", voltage)
+        rse = self._hot(self.series_resistance) * self.diverter_share
+        rf = self.field_circuit_resistance
+        num = V - self.brush_drop - rse * V / (rf + rse)
+        return max(num, 0.0) / (self.hot_armature_resistance + self.external_resistance + rse * rf / (rf + rse))
+
 
 @dataclass(frozen=True, kw_only=True)
 class PermanentMagnet(Machine):
