@@ -115,6 +115,8 @@ class Comparer:
         Starting view (see :data:`VIEW_CHOICES`).
     export_folder : str
         Starting text of the export folder box.
+    thresholds : dcchar.studies.cautions.Thresholds, optional
+        Limits of the caution rules (default: the stated defaults).
     debounce : float, default 0.012
         Quiet time [s] after an update within which browser events are coalesced.
 
@@ -139,7 +141,7 @@ class Comparer:
 
     def __init__(self, machines=None, load=None, settings=None, *, title: str = "", family_spec=None,
                  units: str = "si", view: str = "torque_speed", export_folder: str = "dcchar-export",
-                 debounce: float = 0.012):
+                 thresholds=None, debounce: float = 0.012):
         if settings is not None and not isinstance(settings, ControlSettings):
             raise ParameterError("settings", settings, "a ControlSettings or None")
         if machines is None:
@@ -156,10 +158,12 @@ class Comparer:
         self._share0 = float(self._spec.get("series_share", 0.3)) if self._spec else 0.3
         self._families = {}
         self._scenario = settings if settings is not None else ControlSettings()
+        self.thresholds = thresholds
         self.comparison = None
         self.last_error = None
         self.timings = {}
         self._held = False
+        self._chart_signature = None
         self._coalescer = Coalescer(self._recompute, delay=debounce, report=self._report)
 
         first = next(iter(self._base.values()))
@@ -235,7 +239,8 @@ class Comparer:
         self.controls = c
         for key, ctl in c.items():
             ctl.observe(self._on_control, names="value")
-        self.reset_button = w.Button(description="back to the scenario", icon="undo",
+        self.reset_button = w.Button(description="reset to the scenario", icon="undo",
+                                     layout=w.Layout(width="210px"),
                                      tooltip="reset every setting and tick box to the scenario's values")
         self.reset_button.add_class("kit-reset")
         self.reset_button.on_click(lambda _: self._guard("reset", self.reset))
@@ -267,6 +272,7 @@ class Comparer:
                                     style={"description_width": "45px"}, layout=w.Layout(width="360px"))
         self.export_folder.add_class("kit-export-folder")
         self.export_button = w.Button(description="export chart and table", icon="download",
+                                      layout=w.Layout(width="230px"),
                                       tooltip="PNG and SVG at 300 dpi, and the table as CSV, into the folder")
         self.export_button.add_class("kit-export")
         self.export_button.on_click(lambda _: self._guard("export", self.export))
@@ -318,24 +324,31 @@ class Comparer:
         return w.VBox([head, w.HBox([left, right]), bottom], layout=w.Layout(width="1120px"))
 
     @classmethod
-    def from_scenario(cls, scenario, **kwargs) -> "Comparer":
-        """A comparer on a scenario (see :mod:`dcchar.files.scenario`): its machines, its first load,
-        its control settings and its title."""
+    def from_scenario(cls, scenario, load_name=None, **kwargs) -> "Comparer":
+        """A comparer on a scenario (see :mod:`dcchar.files.scenario`): its machines, one of its
+        loads (default: the scenario's default load), that load's control settings, the caution
+        thresholds, the display units and the title. Keywords go to :class:`Comparer`."""
         machines = scenario.machines()
-        loads = scenario.loads()
-        if hasattr(loads, "values"):
-            loads = list(loads.values())
-        loads = list(loads)
+        loads = dict(scenario.loads())
         if not loads:
             raise ParameterError("scenario.loads", loads, "a scenario with at least one load")
+        name = load_name if load_name is not None else getattr(scenario, "default_load", None)
+        if name is None:
+            name = next(iter(loads))
+        if name not in loads:
+            raise ParameterError("load_name", name, f"one of {tuple(loads)}")
+        if hasattr(scenario, "settings_for"):
+            settings = scenario.settings_for(name)
+        else:
+            settings = scenario.settings() if callable(scenario.settings) else scenario.settings
         spec = getattr(scenario, "family_spec", None)
         spec = spec() if callable(spec) else spec
-        kwargs.setdefault("title", getattr(scenario, "title", "") or "")
         if spec is not None:
             kwargs.setdefault("family_spec", spec)
-        settings = getattr(scenario, "settings", None)
-        settings = settings() if callable(settings) else settings
-        return cls(machines, loads[0], settings, **kwargs)
+        kwargs.setdefault("title", getattr(scenario, "title", "") or "")
+        kwargs.setdefault("thresholds", getattr(scenario, "thresholds", None))
+        kwargs.setdefault("units", getattr(scenario, "units", "si"))
+        return cls(machines, loads[name], settings, **kwargs)
 
     # ------------------------------------------------------------------ state
     def machines(self) -> dict:
@@ -417,7 +430,8 @@ class Comparer:
         stem = (_slug(self.title) + "-" if self.title and _slug(self.title) else "") + view
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", RuntimeWarning)  # a table load asked beyond its range
-            art = draw_view(view, comp.characteristics(), comp.load, comp.operating(), units=units)
+            chars, ops, _ = self.chart_data(comp)
+            art = draw_view(view, chars, comp.load, ops, units=units)
         title_block(art["figure"], self.title or "Field connections compared", self._scenario_line(comp))
         written = list(save_figure(art["figure"], out / stem, formats=("png", "svg"), dpi=300))
         written.append(Path(write_table_csv(comp, out / f"{stem}-table.csv", units=units)))
@@ -479,9 +493,17 @@ class Comparer:
         load = self.load_editor.load
         with warnings.catch_warnings(record=True) as caught:
             warnings.simplefilter("always")
-            comp = compare(machines, load, settings)
+            comp = compare(machines, load, settings, thresholds=self.thresholds)
             t1 = time.perf_counter()
-            self.chart.update(comp.characteristics(), load=comp.load, operating=comp.operating())
+            chars, ops, hidden = self.chart_data(comp)
+            self.chart.update(chars, load=comp.load, operating=ops)
+            # a new kind of load or another set of connections: fit the axes to it (a slider
+            # only ever grows them, so that dragging never makes the chart jump)
+            signature = (type(load), tuple(machines))
+            if signature != self._chart_signature:
+                if self._chart_signature is not None:
+                    self.chart.rescale()
+                self._chart_signature = signature
         t2 = time.perf_counter()
         self.comparison = comp
         self.last_error = None
@@ -493,9 +515,55 @@ class Comparer:
         notes = sorted({str(m.message) for m in caught})
         text = (f"{len(machines)} connection{'s' if len(machines) != 1 else ''} on {getattr(load, 'kind', 'load')}"
                 f" load; updated in {1e3 * (t3 - t0):.0f} ms")
+        if hidden:
+            text += " — beyond the drawn range, not marked: " + ", ".join(hidden)
         if notes:
             text += " — note: " + "; ".join(notes)
         self.status_line.value = status_html(text)
+
+    # ------------------------------------------------------------------ chart data
+    @staticmethod
+    def chart_currents(candidate, points: int = 300):
+        """Armature currents [A] the chart sweeps for one candidate: the working range.
+
+        From 0 (or 1.25 times the most negative current of a stable operating point, for
+        generating points) up to twice the rated current (half the standstill current without a
+        rating), widened to 1.25 times any motoring operating current and never beyond the
+        standstill current. The study
+        itself sweeps to standstill, where the torques are many times rated and would crowd the
+        working region into a corner of the chart.
+        """
+        import numpy as np
+
+        m = candidate.machine
+        i0 = float(candidate.characteristic.locked_rotor_current)
+        cur = [p.armature_current for p in candidate.operating.points]
+        hi = 2.0 * m.rating.current if m.rating is not None else 0.5 * i0
+        hi = max([hi] + [1.25 * i for i in cur if 0 < i <= i0])
+        if math.isfinite(i0) and i0 > 0:
+            hi = min(hi, i0)
+        lo = min([0.0] + [1.25 * p.armature_current for p in candidate.operating.points
+                           if p.armature_current < 0 and (p.stable or p is candidate.point)])
+        return np.linspace(lo, hi, points)
+
+    def chart_data(self, comparison):
+        """(characteristics, operating results, hidden) as drawn: each candidate's characteristic
+        over :meth:`chart_currents`, its operating points within that range, and a list naming
+        the points left out."""
+        import dataclasses
+
+        chars, ops, hidden = [], [], []
+        for cand in comparison.candidates.values():
+            currents = self.chart_currents(cand)
+            chars.append(cand.machine.characteristic(cand.voltage, current=currents))
+            lo, hi = currents[0], currents[-1]
+            op = cand.operating
+            keep = tuple(p for p in op.points if lo <= p.armature_current <= hi)
+            for p in op.points:
+                if p not in keep:
+                    hidden.append(f"{cand.machine.label} {p.speed_rpm:.0f} r/min")
+            ops.append(op if len(keep) == len(op.points) else dataclasses.replace(op, points=keep))
+        return chars, ops, hidden
 
     # ------------------------------------------------------------------ display
     def _repr_mimebundle_(self, **kwargs):
