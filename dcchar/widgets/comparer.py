@@ -299,7 +299,6 @@ class Comparer:
         canvas.footer_visible = False
         canvas.toolbar_visible = False
         canvas.resizable = False
-        canvas.layout = w.Layout(width=f"{int(_FIGSIZE_IN[0] * 100)}px", height=f"{int(_FIGSIZE_IN[1] * 100)}px")
         canvas.add_class("kit-figure")
         return canvas, fig
 
