@@ -190,28 +190,138 @@ def test_load_curve_is_the_load_over_the_chart_speed_range():
     line = art["load"]
     x, y = np.asarray(line.get_xdata()), np.asarray(line.get_ydata())
     assert_allclose(x, LOAD.torque(y * RPM), rtol=1e-12)
-    assert_allclose([y.min(), y.max()], [0.0, art["axes"].get_ylim()[1]])
+    assert_allclose([y.min(), y.max()], art["axes"].get_ylim())
     assert "fan-like stand-in" in line.get_label()
     # views without a torque-speed plane draw no load curve
     assert charts.current_torque_chart(CURVES, LOAD)["load"] is None
 
 
+def _spread_results():
+    """One point per connection, far apart on the torque-speed view; the fifth one unstable."""
+    pts = [_point((600 + 300 * i) * RPM, 20.0 + 35.0 * i, current=20.0 + 15 * i) for i in range(len(MACHINES))]
+    pts[4] = _point(1700 * RPM, 76.0, stable=False, current=70.0)
+    return [types.SimpleNamespace(points=[p], reason=None) for p in pts]
+
+
+def test_load_curve_spans_negative_speeds_with_the_lowering_torque():
+    from dcchar.models.loads import Gearing, Hoist
+
+    hoist = Hoist(load_mass=2000.0, drum_diameter=0.5, reeving=2.0, gearing=Gearing(ratio=32.0, efficiency=0.92))
+    # drum torque m*g*r/reeving; at the motor /(ratio*eff) raising, *eff/ratio lowering: gear efficiency by
+    # the direction of power flow, G. K. Dubey, Fundamentals of Electrical Drives, 2nd ed., ch. 2, Ex. 2.1
+    t_drum = 2000.0 * 9.80665 * 0.25 / 2.0
+    raising, lowering = t_drum / (32.0 * 0.92), t_drum * 0.92 / 32.0
+    res = [types.SimpleNamespace(points=[_point(1200 * RPM, raising)], reason=None),
+           types.SimpleNamespace(points=[_point(-900 * RPM, lowering, stable=False, current=-20.0)], reason=None)]
+    for art in (charts.torque_speed_chart(CURVES[:2], hoist, res),):
+        lo, hi = art["axes"].get_ylim()
+        assert lo < -900.0  # the axis shows the lowering point
+        x, y = np.asarray(art["load"].get_xdata()), np.asarray(art["load"].get_ydata())
+        assert_allclose([y.min(), y.max()], [lo, hi])  # the load over the whole speed axis
+        assert_allclose(x[y > 0], raising, rtol=1e-9)
+        assert_allclose(x[y < 0], lowering, rtol=1e-9)
+        assert 0.0 in y  # a sample at standstill, where the torque steps
+    # the live chart draws it the same way
+    chart = charts.LiveChart()
+    chart.update(CURVES[:2], hoist, res)
+    y = np.asarray(chart.load_line.get_ydata())
+    assert y.min() < -900.0 and y.max() > 1200.0
+    assert_allclose(np.asarray(chart.load_line.get_xdata())[y < 0], lowering, rtol=1e-9)
+
+
+def test_markers_spaced_evenly_along_the_visible_curve():
+    from dcchar.charts.labels import arc_markevery
+
+    art = charts.efficiency_power_chart(CURVES, None, _results())
+    ax = art["axes"]
+    for k, line in enumerate(art["lines"]):
+        idx = line.get_markevery()
+        assert 2 <= len(idx) <= 7
+        assert idx == arc_markevery(ax, line.get_xdata(), line.get_ydata(), phase=(k + 0.5) / len(CURVES))
+        pts = ax.transData.transform(np.column_stack([line.get_xdata(), line.get_ydata()]))
+        ok = np.isfinite(pts).all(axis=1)
+        seg = np.hypot(*np.diff(np.where(ok[:, None], pts, 0.0), axis=0).T) * (ok[1:] & ok[:-1])
+        s = np.concatenate([[0.0], np.cumsum(seg)])
+        gaps = np.diff(s[idx])
+        # even spacing by arc length (to a few sweep steps on the steep light-load end)
+        assert gaps.max() - gaps.min() <= 0.35 * gaps.mean()
+        # and not bunched: a marker spacing is a good share of the axes diagonal
+        diag = math.hypot(ax.bbox.width, ax.bbox.height)
+        assert gaps.min() > 0.1 * diag
+
+
+def test_freeze_layout_draws_once_per_format(tmp_path):
+    art = charts.draw_view("torque_speed", CURVES, LOAD, _results())
+    fig = art["figure"]
+    charts.title_block(fig, "Fan drive", "invented scenario", date="2024-05-01")
+    charts.freeze_layout(fig)
+    assert fig.get_layout_engine() is None
+    before = art["axes"].get_position().bounds
+    draws = []
+    fig.canvas.mpl_connect("draw_event", lambda event: draws.append(event))
+    offsets = [a.get_position() for a in art["annotations"]]
+    charts.save_figure(fig, tmp_path / "ts", formats=("png", "svg"), dpi=300)
+    assert len(draws) == 2  # one draw per format, no layout passes
+    assert art["axes"].get_position().bounds == before
+    assert [a.get_position() for a in art["annotations"]] == offsets  # one label layout for PNG and SVG
+
+
 def test_operating_points_marked_and_annotated():
-    res = _results()
+    res = _spread_results()
     art = charts.torque_speed_chart(CURVES, LOAD, res)
     assert len(art["points"]) == len(res)
     texts = [a.get_text() for a in art["annotations"]]
-    assert texts[0] == "1500 r/min\n60.0 N·m"
+    assert len(texts) == len(res)  # far apart: a label each
+    # each label names its connection, then speed and torque in display units
+    assert texts[0] == "sep. excited\n600 r/min, 20.0 N·m"
+    assert texts[1] == "shunt\n900 r/min, 55.0 N·m"
     unstable = art["points"][4]
     assert unstable.get_markerfacecolor() == "#FFFFFF"  # hollow
-    assert texts[4].startswith("unstable")
+    assert texts[4] == "diff. compound, short, unstable\n1700 r/min, 76.0 N·m"
     assert art["points"][0].get_markerfacecolor() != "#FFFFFF"
-    assert_allclose(art["points"][0].get_xydata(), [[60.0, 1500.0]])
+    assert_allclose(art["points"][0].get_xydata(), [[20.0, 600.0]])
     # the same point on the efficiency-power view, display units
     art = charts.efficiency_power_chart(CURVES, None, res, units="us")
     p = res[0].points[0]
     assert_allclose(art["points"][0].get_xydata(), [[p.output_power / HP, 85.0]])
-    assert art["annotations"][0].get_text() == f"1500 r/min\n{60.0 / LBF_FT:.1f} lbf·ft"
+    assert f"600 r/min, {20.0 / LBF_FT:.1f} lbf·ft" in "\n".join(a.get_text() for a in art["annotations"])
+
+
+def test_close_points_gather_in_one_box_naming_each_connection():
+    res = _results()  # five stable points at 1500 r/min, 60..65 N·m, and an unstable one apart
+    art = charts.torque_speed_chart(CURVES, LOAD, res)
+    texts = [a.get_text() for a in art["annotations"]]
+    assert len(texts) == 2
+    group = texts[0].split("\n")
+    assert group[0] == "at 1500 r/min:"  # the shared speed heads the box
+    names = [style.short_name(m) for m in MACHINES]
+    assert group[1:] == [f"{names[i]}: {60.0 + i:.1f} N·m" for i in (0, 1, 2, 3, 5)]
+    assert texts[1].startswith("diff. compound, short, unstable\n")
+    # the box has one leader line, to the middle of its points
+    xy = np.array([[60.0 + i, 1500.0] for i in (0, 1, 2, 3, 5)])
+    assert_allclose(art["annotations"][0].xy, xy.mean(axis=0))
+
+
+def test_group_text_forms():
+    from dcchar.charts.labels import group_text
+
+    one = [("shunt", "1151 r/min", "89.5 N·m", True)]
+    assert group_text(one) == "shunt\n1151 r/min, 89.5 N·m"
+    assert group_text(one * 3) == group_text(one)  # repeats dropped
+    two = one + [("series", "1157 r/min", "89.5 N·m", False)]
+    assert group_text(two) == "at 89.5 N·m:\nshunt: 1151 r/min\nseries: 1157 r/min, unstable"
+    mixed = one + [("series", "1157 r/min", "80.0 N·m", True)]
+    assert group_text(mixed) == "shunt: 1151 r/min, 89.5 N·m\nseries: 1157 r/min, 80.0 N·m"
+    same = one + [("series", "1151 r/min", "89.5 N·m", True)]
+    assert group_text(same) == "at 1151 r/min, 89.5 N·m:\nshunt\nseries"
+
+
+def test_group_points_single_linkage():
+    from dcchar.charts.labels import group_points
+
+    # a chain 0-1-2 within 9 pt step by step (though 0 and 2 are 16 pt apart), and two lone points
+    xy = [(0, 0), (8, 0), (16, 0), (100, 0), (np.nan, 5)]
+    assert group_points(xy, 9.0) == [[0, 1, 2], [3], [4]]
 
 
 def test_labels_of_crowded_points_do_not_overlap():
@@ -226,16 +336,52 @@ def test_labels_of_crowded_points_do_not_overlap():
         assert ax_box.x0 - 1 <= a.x0 and a.x1 <= ax_box.x1 + 1 and ax_box.y0 - 1 <= a.y0 and a.y1 <= ax_box.y1 + 1
         for b in boxes[i + 1:]:
             assert not a.overlaps(b) or a.intersection(a, b).height < 1.0
+    assert charts.overlapping_texts(fig) == []
+
+
+@pytest.mark.parametrize("view", list(curves.VIEWS))
+@pytest.mark.parametrize("results", [_results, _spread_results])
+def test_labels_clear_of_ticks_titles_and_each_other(view, results):
+    art = charts.draw_view(view, CURVES, LOAD, results())
+    fig = art["figure"]
+    charts.title_block(fig, "Fan drive", "invented scenario", date="2024-05-01")
+    charts.freeze_layout(fig)
+    assert charts.overlapping_texts(fig, draw=False) == []
+    assert charts.clipped_texts(fig, draw=False) == []
+    # the boxes, as drawn, lie inside the axes area
+    fig.canvas.draw()
+    r = fig.canvas.get_renderer()
+    ax_box = art["axes"].bbox
+    for a in art["annotations"]:
+        b = a.get_bbox_patch().get_window_extent(r)
+        assert ax_box.x0 <= b.x0 and b.x1 <= ax_box.x1 and ax_box.y0 <= b.y0 and b.y1 <= ax_box.y1
+
+
+def test_overlapping_texts_finds_a_label_on_the_ticks():
+    fig = style.new_figure()
+    ax = fig.add_subplot()
+    ax.set_xlim(0, 10)
+    ax.set_ylim(0, 10)
+    assert charts.overlapping_texts(fig) == []
+    low = ax.annotate("over the ticks", xy=(5, 0.1), xytext=(0, -8), textcoords="offset points", ha="center",
+                      bbox=dict(boxstyle="round,pad=0.2"), annotation_clip=False)
+    pairs = charts.overlapping_texts(fig)
+    assert pairs and all(a is low for a, _ in pairs)
+    assert any(b in ax.xaxis.get_ticklabels() for _, b in pairs)
+    a = ax.text(2, 5, "one", bbox=dict(pad=2))
+    b = ax.text(2.1, 5.05, "two", bbox=dict(pad=2))
+    assert (a, b) in charts.overlapping_texts(fig)
 
 
 def test_coinciding_points_share_one_label():
     res = [types.SimpleNamespace(points=[_point(1500 * RPM, 60.0)], reason=None) for _ in MACHINES]
     art = charts.torque_speed_chart(CURVES, LOAD, res)
     assert len(art["points"]) == len(MACHINES)
-    assert [a.get_text() for a in art["annotations"]] == ["1500 r/min\n60.0 N·m"]
+    text = "\n".join(["at 1500 r/min, 60.0 N·m:"] + [style.short_name(m) for m in MACHINES])
+    assert [a.get_text() for a in art["annotations"]] == [text]
     chart = charts.LiveChart()
     chart.update(CURVES, LOAD, res)
-    assert len(chart.annotations) == 1
+    assert [a.get_text() for a in chart.annotations] == [text]
 
 
 def test_reason_shown_when_a_result_gives_one():
@@ -403,7 +549,16 @@ def test_live_chart_data_and_blit_equals_full_draw():
     blitted = _buffer(chart.figure)
     chart.figure.canvas.draw()  # full redraw: the draw_event handler redraws the moving artists
     assert_array_equal(blitted, _buffer(chart.figure))
-    assert [a.get_text() for a in chart.annotations][4].startswith("unstable")
+    texts = [a.get_text() for a in chart.annotations]
+    assert texts[0].startswith("at 1500 r/min:\nsep. excited: 60.0 N·m\n")
+    assert texts[-1].startswith("diff. compound, short, unstable\n")
+    # the labels were placed again for the axes as laid out, inside them and apart
+    r = chart.figure.canvas.get_renderer()
+    boxes = [a.get_bbox_patch().get_window_extent(r) for a in chart.annotations]
+    ax_box = chart.axes.bbox
+    for i, b in enumerate(boxes):
+        assert ax_box.x0 <= b.x0 and b.x1 <= ax_box.x1 and ax_box.y0 <= b.y0 and b.y1 <= ax_box.y1
+        assert all(not b.overlaps(c) for c in boxes[i + 1:])
 
 
 def test_live_chart_rescales_only_when_data_leaves_limits():
@@ -475,17 +630,21 @@ def test_live_chart_without_blitting_canvas_uses_full_draws():
 
 # ------------------------------------------------------------------ label layout property
 @settings(max_examples=60, deadline=None)
-@given(st.lists(st.tuples(st.floats(0, 500), st.sampled_from([8.0, 16.0, 24.0])), min_size=1, max_size=12),
-       st.floats(100, 700))
-def test_spread_keeps_order_gaps_and_bounds(items, height):
-    desired = [d for d, _ in items]
-    heights = [h for _, h in items]
-    low, high = 0.0, height
-    pos = curves._spread(desired, heights, low, high)
-    order = sorted(range(len(items)), key=lambda i: (desired[i], i))
-    for a, b in zip(order, order[1:]):
-        # stacked in the order of their wishes, at least half of each height apart
-        assert pos[b] - pos[a] >= 0.5 * (heights[a] + heights[b]) - 1e-9
-    if sum(heights) <= high - low:
-        assert min(p - 0.5 * h for p, h in zip(pos, heights)) >= low - 1e-9
-        assert max(p + 0.5 * h for p, h in zip(pos, heights)) <= high + 1e-9
+@given(st.lists(st.tuples(st.floats(0, 300), st.floats(0, 200), st.floats(20, 80), st.floats(8, 40)),
+                min_size=1, max_size=6))
+def test_place_boxes_inside_and_apart_when_they_fit(items):
+    from dcchar.charts.labels import _GAP_PT, place_boxes
+
+    region = (0.0, 0.0, 300.0, 200.0)
+    anchors = [(x, y) for x, y, _, _ in items]
+    sizes = [(w, h) for _, _, w, h in items]
+    if sum(w * h for w, h in sizes) > 0.25 * 300 * 200:
+        return  # crowded beyond what a chart needs; the search may not find room
+    centres = place_boxes(anchors, sizes, region)
+    boxes = [(cx - w / 2, cy - h / 2, cx + w / 2, cy + h / 2) for (cx, cy), (w, h) in zip(centres, sizes)]
+    for i, b in enumerate(boxes):
+        assert b[0] >= -1e-9 and b[1] >= -1e-9 and b[2] <= 300 + 1e-9 and b[3] <= 200 + 1e-9
+        for c in boxes[i + 1:]:
+            apart = (b[2] + _GAP_PT <= c[0] + 1e-9 or c[2] + _GAP_PT <= b[0] + 1e-9
+                     or b[3] + _GAP_PT <= c[1] + 1e-9 or c[3] + _GAP_PT <= b[1] + 1e-9)
+            assert apart, (b, c)

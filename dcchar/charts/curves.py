@@ -27,9 +27,18 @@ Drawing rules:
   infinity. Without any finite safe speed, the axis ends at the drawn data or at three times
   the median drawn speed, whichever is lower (a display limit only: points beyond it are cut
   by the axes, not removed from the data); ``speed_limit=`` sets it by hand.
-- The load curve is drawn on the torque-speed view, over the chart's speed range. On the other
-  views the load shows through its operating points, which every view marks: filled markers
-  for stable points, hollow ones for unstable points, each labelled with its speed and torque.
+- The load curve is drawn on the torque-speed view, over the chart's whole speed range,
+  negative speeds included (a hoist lowering its load, where the gear efficiency acts the other
+  way), with a sample at standstill. On the other views the load shows through its operating
+  points, which every view marks: filled markers for stable points, hollow ones for unstable
+  points.
+- Each operating point is labelled with the short name of its connection, its speed and its
+  torque, and "unstable" where it is; points close together on the chart share one box with a
+  line per connection and one leader line. The boxes are placed in free space inside the axes
+  (never over the tick labels), and markers along each curve are spaced by arc length on the
+  chart, a few per curve: see :mod:`dcchar.charts.labels`. Both are laid out again when the
+  figure is drawn at a new size, without extra draws; :func:`dcchar.charts.export.freeze_layout`
+  fixes the layout before saving.
 """
 
 from __future__ import annotations
@@ -47,7 +56,8 @@ from .style import LOAD_STYLE, chart_style, new_figure, styles_for
 
 __all__ = [
     "VIEWS", "ViewSpec", "draw_view", "torque_speed_chart", "current_torque_chart", "speed_current_chart",
-    "efficiency_torque_chart", "efficiency_power_chart", "view_xy", "point_xy", "point_label", "load_xy",
+    "efficiency_torque_chart", "efficiency_power_chart", "view_xy", "point_xy", "point_label", "point_values",
+    "load_xy",
     "axis_limits", "lowest_safe_speed", "as_list", "pair_operating", "place_labels", "load_label", "merge_labels",
 ]
 
@@ -150,13 +160,22 @@ def _fmt(v: float) -> str:
     return f"{v:.2f}"
 
 
-def point_label(point, units: str = "si") -> str:
-    """Annotation of an operating point: speed, then torque on a second line, in display units;
-    an unstable point's label begins with "unstable"."""
+def point_values(point, units: str = "si") -> tuple:
+    """(speed text, torque text) of an operating point in display units, e.g.
+    ``("1151 r/min", "89.5 N·m")``."""
     w = float(point.speed) / _factor("speed", units)
     t = float(point.torque) / _factor("torque", units)
-    text = f"{w:.0f} {_unit('speed', units)}\n{_fmt(t)} {_unit('torque', units)}"
-    return text if getattr(point, "stable", True) else f"unstable, {text}"
+    return f"{w:.0f} {_unit('speed', units)}", f"{_fmt(t)} {_unit('torque', units)}"
+
+
+def point_label(point, units: str = "si", name: str | None = None) -> str:
+    """Label of one operating point: the connection's short name (when given) on the first line,
+    then speed and torque in display units; an unstable point says so in words:
+    ``"shunt\n1151 r/min, 89.5 N·m"``, ``"series, unstable\n-1498 r/min, 75.8 N·m"``."""
+    from .labels import group_text
+
+    w, t = point_values(point, units)
+    return group_text([(name or "", w, t, bool(getattr(point, "stable", True)))])
 
 
 def load_xy(load, speed_range_si: tuple, view: str, units: str = "si", points: int = 200):
@@ -167,6 +186,8 @@ def load_xy(load, speed_range_si: tuple, view: str, units: str = "si", points: i
         return None
     lo, hi = speed_range_si
     w = np.linspace(lo, hi, int(points))
+    if lo < 0.0 < hi:  # a sample at standstill, where the torque of a hoist changes with the power flow
+        w = np.sort(np.append(w, 0.0))
     t = np.asarray(load.torque(w), dtype=float)
     return t / _factor("torque", units), w / _factor("speed", units)
 
@@ -297,54 +318,14 @@ def axis_limits(characteristics, view: str, units: str = "si", points=(), speed_
 
 
 # ---------------------------------------------------------------- label placement
-def _spread(desired, heights, low, high) -> list:
-    """1-D label layout: positions near ``desired`` with gaps of at least the half-heights,
-    groups of overlapping labels centred on their mean wish, the whole kept in [low, high]."""
-    order = sorted(range(len(desired)), key=lambda i: desired[i])
-    groups = []  # each: [members, centre]
-    for i in order:
-        groups.append([[i], desired[i]])
-        while len(groups) > 1:
-            (a, ca), (b, cb) = groups[-2], groups[-1]
-            ha = sum(heights[j] for j in a)
-            hb = sum(heights[j] for j in b)
-            if ca + 0.5 * ha <= cb - 0.5 * hb:
-                break
-            members = a + b
-            centre = sum(desired[j] for j in members) / len(members)
-            groups[-2:] = [[members, centre]]
-    pos = [0.0] * len(desired)
-    total = sum(heights)
-    # keep the stack inside [low, high]: shift groups down from the top, then up from the bottom
-    tops = []
-    for members, centre in groups:
-        h = sum(heights[j] for j in members)
-        tops.append([centre + 0.5 * h, h, members])
-    limit = high
-    for g in reversed(tops):
-        g[0] = min(g[0], limit)
-        limit = g[0] - g[1]
-    floor = low if total <= high - low else high - total
-    for g in tops:
-        g[0] = max(g[0], floor + g[1])
-        floor = g[0]
-    for top, h, members in tops:
-        y = top
-        for j in reversed(members):  # members run from the lowest wish up
-            pos[j] = y - 0.5 * heights[j]
-            y -= heights[j]
-    return pos
+def place_labels(ax, anchors, texts=None, fontsize: float = 6.0, top=None, *, lines=(), markers=None,
+                 avoid=()) -> list:
+    """Offsets [pt] of label boxes from their points: inside the axes, clear of one another.
 
-
-def place_labels(ax, anchors, texts=None, fontsize: float = 6.0, top=None) -> list:
-    """Offsets [pt] for labels of points so that no two labels overlap and all stay in the axes.
-
-    Labels go to the right or the left of their points: points near an edge of the axes put
-    their label on the free side; of the others, the left half (by x) labels to the left and
-    the right half to the right, so that labels of opposite sides cannot cross; a label that
-    would not fit on its side is moved along it to stay inside the axes. On each side the labels are then spread
-    vertically (groups of crowded labels centred on their points) within the axes, below
-    ``top`` when given.
+    The boxes are placed by :func:`dcchar.charts.labels.place_boxes` in the current geometry
+    of ``ax`` (no drawing): inside the axes area and below ``top``, clear of one another and of
+    the texts in ``avoid``, hiding as little as possible of ``lines`` and ``markers``, and near
+    their points.
 
     Parameters
     ----------
@@ -352,75 +333,30 @@ def place_labels(ax, anchors, texts=None, fontsize: float = 6.0, top=None) -> li
     anchors : sequence of (x, y)
         Points in data coordinates.
     texts : sequence of str, optional
-        The labels, to estimate their widths and line counts.
+        The labels (their size is measured from the font).
     fontsize : float
         [pt]
     top : float, optional
         Highest data y the labels may reach (for instance the bottom of the runaway band).
+    lines : sequence of Line2D, optional
+        Curves to keep visible.
+    markers : sequence of (x, y), optional
+        Operating points to keep visible (default: ``anchors``).
+    avoid : sequence of Text, optional
 
     Returns
     -------
     list of (dx, dy, ha)
-        Offsets in points and horizontal alignment for ``Axes.annotate``.
+        Offset in points of each box centre from its point, and the horizontal alignment
+        ("center") for ``Axes.annotate`` with ``va="center"``.
     """
-    n = len(anchors)
-    if n == 0:
+    from .labels import box_offsets
+
+    if not len(anchors):
         return []
-    texts = [""] * n if texts is None else list(texts)
-    px_per_pt = ax.figure.dpi / 72.0
-    disp = ax.transData.transform(np.asarray(anchors, dtype=float).reshape(-1, 2))
-    bbox = ax.bbox
-    gap = 14.0 * px_per_pt
-    line_h = 1.45 * fontsize * px_per_pt  # line spacing 1.2 of a glyph height ~1.17 em, plus box padding
-    heights = [line_h * (t.count("\n") + 1) for t in texts]
-    widths = [0.56 * fontsize * px_per_pt * max((len(s) for s in t.split("\n")), default=0) for t in texts]
-    high = bbox.y1 - 2.0 * px_per_pt
-    if top is not None:
-        high = min(high, float(ax.transData.transform((0.0, top))[1]) - 2.0 * px_per_pt)
-    low = bbox.y0 + 2.0 * px_per_pt
-    finite = [i for i in range(n) if np.isfinite(disp[i]).all()]
-    # points in the left half (by x) of the crowd label to the left, the others to the right,
-    # so that labels on opposite sides never cross; edge points label towards the free side
-    by_x = sorted(finite, key=lambda i: disp[i][0])
-    side = {}
-    for rank, i in enumerate(by_x):
-        x = disp[i][0]
-        frac = (x - bbox.x0) / max(bbox.width, 1.0)
-        want = 1 if frac < 0.15 else -1 if frac > 0.85 else (-1 if rank < len(by_x) // 2 else 1)
-        side[i] = want
-    # horizontal offset of each label, kept inside the axes
-    dxs = {}
-    for i in finite:
-        x = disp[i][0]
-        if side[i] == 1:
-            dxs[i] = min(gap, bbox.x1 - 2.0 * px_per_pt - widths[i] - x)
-        else:
-            dxs[i] = -min(gap, x - bbox.x0 - 2.0 * px_per_pt - widths[i])
-
-    def spread(groups):
-        ys = {}
-        for idx in groups:
-            if idx:
-                for i, y in zip(idx, _spread([disp[i][1] for i in idx], [heights[i] for i in idx], low, high)):
-                    ys[i] = y
-        return ys
-
-    def extent(i, y):
-        x = disp[i][0] + dxs[i]
-        x0, x1 = (x, x + widths[i]) if side[i] == 1 else (x - widths[i], x)
-        return x0, x1, y - 0.5 * heights[i], y + 0.5 * heights[i]
-
-    ys = spread([[i for i in finite if side[i] == s] for s in (1, -1)])
-    tol = 0.5 * px_per_pt
-    boxes = {i: extent(i, ys[i]) for i in finite}
-    crossed = any(a[0] < b[1] - tol and b[0] < a[1] - tol and a[2] < b[3] - tol and b[2] < a[3] - tol
-                  for i, a in boxes.items() for j, b in boxes.items() if side[i] == 1 and side[j] == -1)
-    if crossed:  # labels of the two sides would meet: one stack for all
-        ys = spread([finite])
-    out = [(10.0, 8.0, "left")] * n
-    for i in finite:
-        out[i] = (dxs[i] / px_per_pt, (ys[i] - disp[i][1]) / px_per_pt, "left" if side[i] == 1 else "right")
-    return out
+    texts = [""] * len(anchors) if texts is None else list(texts)
+    offsets = box_offsets(ax, anchors, texts, fontsize, lines=lines, markers=markers, top=top, avoid=avoid)
+    return [(float(dx), float(dy), "center") for dx, dy in offsets]
 
 
 # ---------------------------------------------------------------- drawing
@@ -461,6 +397,27 @@ def _legend_labels(characteristics, styles) -> list:
         labels = [f"{lab}, {float(c.voltage):g} V" for lab, c in zip(labels, characteristics)]
     # long names on two lines, so that two legend columns fit a page column
     return [lab.replace(" (", "\n(", 1) if len(lab) > 22 else lab for lab in labels]
+
+
+#: How operating-point labels look: an opaque white box with a thin grey edge, a thin leader line.
+_ANNOTATION_KW = dict(ha="center", va="center", multialignment="left", fontsize=6, zorder=5, annotation_clip=True,
+                      linespacing=1.2,
+                      bbox=dict(boxstyle="round,pad=0.25", facecolor="white", edgecolor="#888888", linewidth=0.4),
+                      # the leader starts at the box centre, hidden by the opaque box (clipping it at the box
+                      # edge, patchA, costs a third of a live update)
+                      arrowprops=dict(arrowstyle="-", color="#444444", linewidth=0.5, shrinkA=0, shrinkB=3.5,
+                                      patchA=None))
+
+
+def _short_names(characteristics, styles) -> list:
+    """Short connection names for point labels, with the voltage where the legend gives it."""
+    from .style import short_name
+
+    names = [short_name(c.machine) for c in characteristics]
+    volts = {round(float(c.voltage), 6) for c in characteristics}
+    if len(volts) > 1 or len(set(names)) < len(names):
+        names = [f"{n} {float(c.voltage):g} V" for n, c in zip(names, characteristics)]
+    return names
 
 
 def _legend_kwargs(ncol: int) -> dict:
@@ -506,8 +463,9 @@ def draw_view(view: str, characteristics, load=None, operating=None, *, ax=None,
     dict
         ``figure``, ``axes``, ``lines`` (one Line2D per characteristic, in order), ``load``
         (Line2D or None), ``points`` (Line2D of operating markers), ``annotations`` (their
-        labels; points that coincide share one), ``band`` and ``band_label`` (runaway band, or None), ``notes`` (Text of
-        the reasons results give, such as "runs away", or None), ``legend``.
+        label boxes; points close together share one), ``band`` and ``band_label`` (runaway
+        band, or None), ``notes`` (Text of the reasons results give, such as "runs away", or
+        None), ``legend``, ``layout`` (the :class:`~dcchar.charts.labels.LabelLayout`).
     """
     spec = _spec(view)
     display_units(units)
@@ -555,10 +513,11 @@ def draw_view(view: str, characteristics, load=None, operating=None, *, ax=None,
         ylim = lim["ylim"]
         if spec.shows_load and load is not None:
             f = 1.0 / _factor("speed", units)
-            xy = load_xy(load, (max(0.0, ylim[0]) / f, ylim[1] / f), view, units)
+            xy = load_xy(load, (ylim[0] / f, ylim[1] / f), view, units)  # negative speeds too (lowering)
             (out["load"],) = ax.plot(*xy, **LOAD_STYLE, label=load_label(load), zorder=1.5)
 
-        anchors, texts = [], []
+        entries = []
+        names = _short_names(chars, styles)
         for r, idx in pairs:
             s = styles[idx] if idx is not None else None
             for p in r.points:
@@ -566,8 +525,8 @@ def draw_view(view: str, characteristics, load=None, operating=None, *, ax=None,
                 stable = bool(getattr(p, "stable", True))
                 (m,) = ax.plot([x], [y], **_marker_kwargs(s, stable), zorder=4)
                 out["points"].append(m)
-                anchors.append((x, y))
-                texts.append(point_label(p, units))
+                entries.append((x, y, names[idx] if idx is not None else "", *point_values(p, units),
+                                stable))
         reasons = [f"{styles[i].label if i is not None else 'result'}: {r.reason}"
                    for r, i in pairs if getattr(r, "reason", None)]
         if reasons:
@@ -582,17 +541,19 @@ def draw_view(view: str, characteristics, load=None, operating=None, *, ax=None,
         elif legend is not None:
             out["legend"] = ax.legend(loc="best", handlelength=3.2, fontsize=6, framealpha=0.9)
 
-        anchors, texts = merge_labels(anchors, texts)
-        if anchors:
-            if fig.get_layout_engine() is not None:
-                fig.draw_without_rendering()  # settle the layout so label spacing is final
-            for (x, y), text, (dx, dy, ha) in zip(anchors, texts,
-                                                   place_labels(ax, anchors, texts, fontsize=6, top=lim["safe"])):
-                out["annotations"].append(ax.annotate(
-                    text, xy=(x, y), xytext=(dx, dy), textcoords="offset points", ha=ha, va="center",
-                    fontsize=6, zorder=5, annotation_clip=True,
-                    bbox=dict(boxstyle="round,pad=0.15", facecolor="white", edgecolor="none", alpha=0.8),
-                    arrowprops=dict(arrowstyle="-", color="#555555", linewidth=0.5, shrinkA=0, shrinkB=3, patchA=None)))
+        from .labels import LabelLayout, attach, label_groups
+
+        for (x, y), text in label_groups(ax, entries):
+            a = ax.annotate(text, xy=(x, y), xytext=(0.0, 0.0), textcoords="offset points", **_ANNOTATION_KW)
+            a.set_in_layout(False)  # inside the axes by construction; the layout engine need not see it
+            out["annotations"].append(a)
+        layout = LabelLayout(ax, out["annotations"], out["lines"] + ([out["load"]] if out["load"] else []),
+                             [(e[0], e[1]) for e in entries], top=lim["safe"] if spec.y_quantity == "speed" else None,
+                             avoid=[t for t in (out["notes"], out["band_label"]) if t is not None],
+                             marked=out["lines"])
+        layout.update()  # a first layout now; drawing lays it out again once the axes have their final size
+        attach(ax, layout)
+        out["layout"] = layout
     return out
 
 

@@ -1,5 +1,10 @@
 """Saving figures for print: every format rendered first, then moved into place atomically.
 
+:func:`freeze_layout` lays a figure out once (its layout engine, then the labels of operating
+points) and fixes that layout, so that each format then draws the figure exactly once; without
+it matplotlib lays a figure out again for every format, and twice for each.
+:func:`clipped_texts` and :func:`overlapping_texts` check the result.
+
 Each format is rendered into a temporary file in the destination folder; only when every
 format has rendered are the files moved over their final names with :func:`os.replace` (atomic
 on one file system). If any rendering fails, the temporary files are removed and nothing is
@@ -15,7 +20,7 @@ from pathlib import Path
 from ..errors import ParameterError
 from ..models.validation import positive
 
-__all__ = ["save_figure", "clipped_texts", "EXPORT_FORMATS"]
+__all__ = ["save_figure", "clipped_texts", "overlapping_texts", "freeze_layout", "EXPORT_FORMATS"]
 
 #: Formats :func:`save_figure` writes.
 EXPORT_FORMATS = ("png", "svg", "pdf")
@@ -105,19 +110,123 @@ def save_figure(fig, path_stem, formats=("png", "svg"), dpi: float = 300) -> lis
     return targets
 
 
-def clipped_texts(fig, tolerance_px: float = 0.5) -> list:
+def freeze_layout(fig):
+    """Lay a figure out once and keep that layout.
+
+    Runs the figure's layout engine (constrained layout for dcchar figures) once, then the
+    label layout of every axes drawn by :func:`dcchar.charts.curves.draw_view`, and removes the
+    layout engine, so that the axes keep their places. Saving then draws the figure once per
+    format, and :func:`clipped_texts` / :func:`overlapping_texts` can check it with
+    ``draw=False``. Call it after the last change to the figure (title block included).
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        ``fig``.
+    """
+    engine = fig.get_layout_engine()
+    if engine is not None:
+        engine.execute(fig)
+        fig.set_layout_engine(None)
+    for ax in fig.axes:
+        for child in ax.get_children():
+            layout = getattr(child, "layout", None)
+            if hasattr(layout, "update"):
+                layout.update()
+    return fig
+
+
+def _renderer(fig, draw: bool):
+    if draw:
+        fig.draw_without_rendering()
+    return fig._get_renderer()
+
+
+def _box(text, renderer):
+    """Window extent [px] of a text, with its box when it has one (annotations positioned first)."""
+    if hasattr(text, "update_positions"):
+        text.update_positions(renderer)
+    patch = text.get_bbox_patch()
+    if patch is not None:
+        text.update_bbox_position_size(renderer)
+        return patch.get_window_extent(renderer)
+    from matplotlib.text import Text
+
+    return Text.get_window_extent(text, renderer)
+
+
+def overlapping_texts(fig, tolerance_px: float = 0.5, draw: bool = True) -> list:
+    """Pairs of texts that overlap: labels in the axes against each other and against the
+    texts around the axes.
+
+    The labels are every visible text drawn inside an axes (annotations such as the labels of
+    operating points, the note of reasons, the band label), measured with their boxes. Each is
+    checked against the others and against the tick labels, axis titles and titles of every
+    axes, the figure's texts (title block) and the legends.
+
+    Parameters
+    ----------
+    fig : matplotlib.figure.Figure
+    tolerance_px : float
+        Overlaps narrower or lower than this are ignored. [px]
+    draw : bool, default True
+        Lay the figure out first (``draw_without_rendering``); False when the layout is fixed
+        (:func:`freeze_layout`).
+
+    Returns
+    -------
+    list of (Artist, Artist)
+        Empty when nothing overlaps.
+    """
+    renderer = _renderer(fig, draw)
+    inner, outer = [], []
+    for ax in fig.axes:
+        if not ax.get_visible():
+            continue
+        for t in ax.texts:
+            if t.get_visible() and t.get_text().strip():
+                if hasattr(t, "xy") and getattr(t, "_check_xy", None) and not t._check_xy(renderer):
+                    continue  # an annotation whose point lies outside the axes is not drawn
+                inner.append((t, _box(t, renderer)))
+        ticks = []
+        for axis in (ax.xaxis, ax.yaxis):
+            axis._update_ticks()
+            ticks += [t for t in axis.get_ticklabels(which="both") if t.get_visible() and t.get_text().strip()]
+            ticks.append(axis.label)
+        ticks += [ax.title, ax._left_title, ax._right_title]
+        outer += [(t, t.get_window_extent(renderer)) for t in ticks if t.get_visible() and t.get_text().strip()]
+        if ax.get_legend() is not None:
+            outer.append((ax.get_legend(), ax.get_legend().get_window_extent(renderer)))
+    figtexts = list(fig.texts) + [t for t in (fig._suptitle, fig._supxlabel, fig._supylabel) if t is not None]
+    outer += [(t, t.get_window_extent(renderer)) for t in figtexts if t.get_visible() and t.get_text().strip()]
+    outer += [(leg, leg.get_window_extent(renderer)) for leg in fig.legends if leg.get_visible()]
+
+    def hit(a, b):
+        w = min(a.x1, b.x1) - max(a.x0, b.x0)
+        h = min(a.y1, b.y1) - max(a.y0, b.y0)
+        return w > tolerance_px and h > tolerance_px
+
+    bad = []
+    for i, (t, bb) in enumerate(inner):
+        for u, cc in inner[i + 1:] + outer:
+            if hit(bb, cc):
+                bad.append((t, u))
+    return bad
+
+
+def clipped_texts(fig, tolerance_px: float = 0.5, draw: bool = True) -> list:
     """Parts of a figure that stick out of it, after laying it out.
 
     Checks every axes with its decorations (tick labels, axis labels, titles, texts and
-    annotations as drawn), every figure legend and every figure-level text.
+    annotations as drawn), every figure legend and every figure-level text. ``draw=False``
+    skips laying the figure out (when :func:`freeze_layout` has fixed it).
 
     Returns
     -------
     list of matplotlib.artist.Artist
         Empty when nothing is clipped.
     """
-    fig.draw_without_rendering()
-    renderer = fig._get_renderer()
+    renderer = _renderer(fig, draw)
     box = fig.bbox
     parts = [(ax, ax.get_tightbbox(renderer)) for ax in fig.axes if ax.get_visible()]
     parts += [(leg, leg.get_window_extent(renderer)) for leg in fig.legends if leg.get_visible()]

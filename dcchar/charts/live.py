@@ -32,9 +32,10 @@ import textwrap
 
 from ..models.units import display_units
 from ..models.validation import nonnegative
-from .curves import (_BAND_COLOR, _BAND_TEXT, _axis_title, _factor, _legend_kwargs, _legend_labels, _marker_kwargs,
-                     _nan_range, _spec, _unit, as_list, axis_limits, load_label, load_xy, merge_labels, pair_operating,
-                     place_labels, point_label, point_xy, view_xy)
+from .curves import (_ANNOTATION_KW, _BAND_COLOR, _BAND_TEXT, _axis_title, _factor, _legend_kwargs, _legend_labels,
+                     _marker_kwargs, _nan_range, _short_names, _spec, _unit, as_list, axis_limits, load_label, load_xy,
+                     pair_operating, place_labels, point_values, point_xy, view_xy)
+from .labels import arc_markevery, label_groups
 from .style import CONNECTION_STYLES, LOAD_STYLE, chart_style, new_figure, style_key, styles_for
 
 __all__ = ["LiveChart"]
@@ -91,6 +92,9 @@ class LiveChart:
         self._pending_full = True
         self._state = None
         self._legend_signature = None
+        self._band_state = None
+        self._label_args = {}
+        self._placed_for = None
         self.stats = {"blit": 0, "full": 0, "rescale": 0}
         with chart_style():
             self.axes = ax = figure.add_subplot()
@@ -110,6 +114,8 @@ class LiveChart:
                                 bbox=dict(boxstyle="round,pad=0.3", facecolor="white", edgecolor="#999999",
                                           linewidth=0.4, alpha=0.9))
             self._annotations = []
+        for a in (self.band, self.band_label):  # background artists, inside the axes
+            a.set_in_layout(False)
         self._label_axes()
         self._set_animated()
         self._cid = figure.canvas.mpl_connect("draw_event", self._on_draw)
@@ -208,7 +214,7 @@ class LiveChart:
             m.set(**_marker_kwargs(style, stable))
 
     def _moving(self) -> list:
-        arts = [self.band, self.band_label, self.load_line]
+        arts = [self.load_line]
         arts += list(self.lines.values())
         for pair in self._markers.values():
             arts += list(pair)
@@ -225,15 +231,29 @@ class LiveChart:
     def _annotation(self, i):
         while len(self._annotations) <= i:
             with chart_style():
-                a = self.axes.annotate(
-                    "", xy=(0, 0), xytext=(10, 8), textcoords="offset points", ha="left", va="center",
-                    fontsize=6, zorder=5, annotation_clip=True, visible=False,
-                    bbox=dict(boxstyle="round,pad=0.15", facecolor="white", edgecolor="none", alpha=0.8),
-                    arrowprops=dict(arrowstyle="-", color="#555555", linewidth=0.5, shrinkA=0, shrinkB=3, patchA=None))
+                a = self.axes.annotate("", xy=(0, 0), xytext=(0, 0), textcoords="offset points", visible=False,
+                                       **_ANNOTATION_KW)
             a.set_animated(self.can_blit)
             a.set_in_layout(False)
             self._annotations.append(a)
         return self._annotations[i]
+
+    def _geometry(self):
+        ax = self.axes
+        return ax.get_position().bounds, ax.get_xlim(), ax.get_ylim(), tuple(self.figure.get_size_inches())
+
+    def _place_labels(self):
+        """Place the visible label boxes in the current geometry of the axes."""
+        shown = self.annotations
+        self._placed_for = self._geometry()
+        if not shown:
+            return
+        avoid = [t for t in (self.note, self.band_label) if t.get_visible()]
+        offsets = place_labels(self.axes, [a.xy for a in shown], [a.get_text() for a in shown], fontsize=6,
+                               avoid=avoid, **self._label_args)
+        for a, (dx, dy, ha) in zip(shown, offsets):
+            a.xyann = (dx, dy)
+            a.set_horizontalalignment(ha)
 
     def _label_axes(self):
         spec = _spec(self._view)
@@ -308,6 +328,10 @@ class LiveChart:
 
         # runaway band on speed axes
         safe = target["safe"] if spec.y_quantity == "speed" else None
+        band_state = (safe, ylim[1]) if safe is not None and safe < ylim[1] else None
+        if band_state != self._band_state:  # the band is part of the background: redraw it fully
+            self._band_state = band_state
+            full = True
         if safe is not None and safe < ylim[1]:
             self.band.set_y(safe)
             self.band.set_height(ylim[1] - safe)
@@ -323,47 +347,11 @@ class LiveChart:
         load_text = None
         if load is not None and spec.shows_load:
             f = _factor("speed", units)
-            self.load_line.set_data(*load_xy(load, (max(0.0, ylim[0]) * f, ylim[1] * f), view, units))
+            self.load_line.set_data(*load_xy(load, (ylim[0] * f, ylim[1] * f), view, units))  # negative speeds too
             self.load_line.set_visible(True)
             load_text = load_label(load)
         else:
             self.load_line.set_visible(False)
-
-        # operating points and labels
-        marks: dict = {}
-        anchors, texts = [], []
-        for r, idx in pairs:
-            key = keys[idx] if idx is not None else _NEUTRAL
-            if key == _NEUTRAL and key not in self.lines:
-                self._slot(_NEUTRAL)
-                self.lines[_NEUTRAL].set_visible(False)
-            for p in r.points:
-                xy = point_xy(p, view, units)
-                stable = bool(getattr(p, "stable", True))
-                marks.setdefault((key, stable), []).append(xy)
-                anchors.append(xy)
-                texts.append(point_label(p, units))
-        for key, pair in self._markers.items():
-            for m, stable in zip(pair, (True, False)):
-                pts = marks.get((key, stable))
-                if pts:
-                    m.set_data([q[0] for q in pts], [q[1] for q in pts])
-                    m.set_visible(True)
-                elif m.get_visible():
-                    m.set_visible(False)
-                    m.set_data([], [])
-        anchors, texts = merge_labels(anchors, texts)
-        band_top = safe if (safe is not None and safe < ylim[1]) else None
-        offsets = place_labels(ax, anchors, texts, fontsize=6, top=band_top) if anchors else []
-        for i, ((x, y), text, (dx, dy, ha)) in enumerate(zip(anchors, texts, offsets)):
-            a = self._annotation(i)
-            a.xy = (x, y)
-            a.xyann = (dx, dy)
-            a.set_text(text)
-            a.set_horizontalalignment(ha)
-            a.set_visible(True)
-        for a in self._annotations[len(anchors):]:
-            a.set_visible(False)
 
         label_of = dict(zip(keys, (s.label for s in styles)))
         reasons = [f"{label_of.get(keys[i], 'result') if i is not None else 'result'}: {r.reason}"
@@ -377,6 +365,46 @@ class LiveChart:
             self.note.set_visible(True)
         else:
             self.note.set_visible(False)
+
+        # operating points and labels: one box per group of close points, naming the connections
+        names = dict(zip(keys, _short_names(chars, styles)))
+        marks: dict = {}
+        entries = []
+        for r, idx in pairs:
+            key = keys[idx] if idx is not None else _NEUTRAL
+            if key == _NEUTRAL and key not in self.lines:
+                self._slot(_NEUTRAL)
+                self.lines[_NEUTRAL].set_visible(False)
+            for p in r.points:
+                xy = point_xy(p, view, units)
+                stable = bool(getattr(p, "stable", True))
+                marks.setdefault((key, stable), []).append(xy)
+                entries.append((*xy, names.get(key, ""), *point_values(p, units), stable))
+        for key, pair in self._markers.items():
+            for m, stable in zip(pair, (True, False)):
+                pts = marks.get((key, stable))
+                if pts:
+                    m.set_data([q[0] for q in pts], [q[1] for q in pts])
+                    m.set_visible(True)
+                elif m.get_visible():
+                    m.set_visible(False)
+                    m.set_data([], [])
+        band_top = safe if (safe is not None and safe < ylim[1]) else None
+        # markers along the curves, spaced by arc length on screen, staggered from curve to curve
+        shown = [self.lines[k] for k in keys]
+        for k, line in enumerate(shown):
+            line.set_markevery(arc_markevery(ax, line.get_xdata(), line.get_ydata(), phase=(k + 0.5) / len(shown)))
+        groups = label_groups(ax, entries)
+        for i, ((x, y), text) in enumerate(groups):
+            a = self._annotation(i)
+            a.xy = (x, y)
+            a.set_text(text)
+            a.set_visible(True)
+        for a in self._annotations[len(groups):]:
+            a.set_visible(False)
+        self._label_args = dict(top=band_top, lines=shown + [self.load_line],
+                                markers=[(e[0], e[1]) for e in entries])
+        self._place_labels()
 
         # legend: rebuilt only when its entries change
         signature = (tuple(zip(keys, labels, (s.linestyle for s in styles), (s.marker for s in styles))), load_text)
@@ -430,6 +458,8 @@ class LiveChart:
         if not any(a.get_animated() for a in self._moving()):
             self._pending_full = False
             return
+        if self._placed_for != self._geometry():  # the layout engine moved the axes: place the labels again
+            self._place_labels()
         renderer = getattr(event, "renderer", None) or canvas.get_renderer()
         if hasattr(canvas, "copy_from_bbox"):
             self._background = canvas.copy_from_bbox(self.figure.bbox)

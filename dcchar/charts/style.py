@@ -24,7 +24,7 @@ from ..models.validation import positive
 __all__ = [
     "ConnectionStyle", "CONNECTION_STYLES", "FALLBACK_STYLES", "LOAD_STYLE", "MM_PER_INCH", "COLUMN_MM",
     "DOUBLE_COLUMN_MM", "FONT_SIZE", "STYLE_RC", "style_key", "style_for", "styles_for", "figure_size_mm",
-    "new_figure", "chart_style", "title_block",
+    "new_figure", "chart_style", "title_block", "SHORT_NAMES", "short_name",
 ]
 
 MM_PER_INCH = 25.4
@@ -80,6 +80,28 @@ CONNECTION_STYLES = {
                                                          (0, (8, 2, 2, 2)), "X"),
     "permanent_magnet": ConnectionStyle("permanent magnet", "#7F7F7F", (0, (2, 1, 2, 4)), "h"),
 }
+
+#: Short names of the connections, for the labels of operating points (the legend keeps the full names).
+SHORT_NAMES = {
+    "separately_excited": "sep. excited",
+    "shunt": "shunt",
+    "series": "series",
+    "long_shunt_compound/cumulative": "cum. compound, long",
+    "short_shunt_compound/cumulative": "cum. compound, short",
+    "long_shunt_compound/differential": "diff. compound, long",
+    "short_shunt_compound/differential": "diff. compound, short",
+    "permanent_magnet": "perm. magnet",
+}
+
+
+def short_name(machine) -> str:
+    """Short name of a machine's connection (:data:`SHORT_NAMES`); else its label, cut to 20 characters."""
+    key = style_key(machine)
+    if key in SHORT_NAMES:
+        return SHORT_NAMES[key]
+    label = str(getattr(machine, "label", key))
+    return label if len(label) <= 20 else label[:19] + "\u2026"
+
 
 #: Styles for machines of unknown connection, and for a second curve of one connection.
 FALLBACK_STYLES = (
