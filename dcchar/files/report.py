@@ -65,7 +65,8 @@ class ReportResult:
     figure_loads : tuple of str
         Loads with figures.
     clipped : dict
-        ``file stem -> [texts]`` of artists sticking out of a figure (empty when all fit).
+        ``file stem -> [texts]`` of artists sticking out of a figure, and of texts overlapping
+        (``"overlap: a | b"``); empty when all fit.
     """
 
     folder: Path
@@ -178,6 +179,11 @@ def report_curves(comparison, points: int = 300) -> list:
         out.append(m.characteristic(V, np.linspace(low, top, int(points))))
     return out
 
+def _text_of(artist) -> str:
+    get = getattr(artist, "get_text", None)
+    return " ".join(str(get()).split()) if get is not None else type(artist).__name__
+
+
 def _figures(scenario, load_name, comparison, curves, folder: Path, units, progress, files, clipped):
     from .. import __version__, charts
 
@@ -188,12 +194,12 @@ def _figures(scenario, load_name, comparison, curves, folder: Path, units, progr
         out = charts.draw_view(view, curves, load, ops, units=units)
         fig = out["figure"]
         charts.title_block(fig, title, f"{scenario.name} · {load_name}", scenario.date, __version__)
-        bad = charts.clipped_texts(fig)  # lays the figure out, then checks it
+        # lay the figure out once and keep that layout, so that each format draws it once
+        charts.freeze_layout(fig)
+        bad = [str(getattr(a, "get_text", lambda: a)()) for a in charts.clipped_texts(fig, draw=False)]
+        bad += [f"overlap: {_text_of(a)} | {_text_of(b)}" for a, b in charts.overlapping_texts(fig, draw=False)]
         if bad:
-            clipped[f"{load_name}/{view}"] = [str(getattr(a, "get_text", lambda: a)()) for a in bad]
-        # the layout is final (it does not depend on dpi): keep it, so that saving each format
-        # draws once instead of laying the figure out again
-        fig.set_layout_engine("none")
+            clipped[f"{load_name}/{view}"] = bad
         files.extend(charts.save_figure(fig, folder / view, formats=("png", "svg"), dpi=_DPI))
         progress(f"{load_name}/{view}.png, .svg")
 
