@@ -46,6 +46,7 @@ from pathlib import Path
 
 from ..errors import DcCharError, ParameterError, ScenarioError
 from ..models.units import RPM
+from .scenario_requirements import ChoiceOfConnection
 from .scenario_schema import SCHEMA_VERSION, normalize_document
 from .toml_writer import dumps
 
@@ -374,7 +375,15 @@ def _build(doc, base_dir):
     from ..studies.cautions import Thresholds
 
     thresholds = _guard("thresholds", {}, Thresholds, **doc.get("thresholds", {}))
-    return machines, loads, settings, overrides, thresholds
+    from .scenario_requirements import build_selection
+
+    selection = build_selection(doc, machines, settings, overrides)
+    spread = None
+    if "tolerance" in doc:
+        from .scenario_requirements import build_spread
+
+        spread = build_spread(doc["tolerance"], "tolerance")
+    return machines, loads, settings, overrides, thresholds, selection, spread
 
 
 # --------------------------------------------------------------------------------------------
@@ -382,7 +391,7 @@ def _build(doc, base_dir):
 
 
 @dataclass(frozen=True, eq=False)
-class Scenario:
+class Scenario(ChoiceOfConnection):
     """A checked scenario: the normalized document and the machines and loads built from it.
 
     Two scenarios are equal when their documents are equal (the folder they came from does not

@@ -11,7 +11,8 @@ Key names carry their unit (see ``examples/README.md``): ``_v`` volt, ``_a`` amp
 ``_h`` henry, ``_rpm`` revolutions per minute, ``_rad_s`` radian per second, ``_n_m`` newton
 metre, ``_n`` newton, ``_w`` watt, ``_kw`` kilowatt, ``_kg``, ``_m``, ``_kg_m2``, ``_c`` degree
 Celsius, ``_at`` ampere-turns per pole, ``_per_a`` per ampere, ``_deg`` degree of angle,
-``_m_s2`` metre per second squared; ``_si`` marks a coefficient in coherent SI units as the model
+``_m_s2`` metre per second squared, ``_s`` second, ``_percent`` per cent, ``_ratio`` a multiple (of the
+quantity the key's documentation names); ``_si`` marks a coefficient in coherent SI units as the model
 class documents it; a name without a suffix is a pure number.
 """
 
@@ -26,7 +27,9 @@ from dataclasses import dataclass
 from ..errors import ScenarioError
 
 __all__ = ["SCHEMA_VERSION", "NAME_PATTERN", "Key", "check_table", "normalize_document", "bad", "describe_value",
-           "FAMILY_CONNECTIONS", "MACHINE_CONNECTIONS", "LOAD_KINDS", "MAGNETIZATION_FORMS", "MAGNET_MATERIALS"]
+           "FAMILY_CONNECTIONS", "MACHINE_CONNECTIONS", "LOAD_KINDS", "MAGNETIZATION_FORMS", "MAGNET_MATERIALS",
+           "REQUIREMENT_FIGURES", "REQUIREMENT_DEFAULTS", "REQUIREMENT_VALUE_KEYS", "REQUIREMENT_DETAILS",
+           "REQUIREMENTS", "TOLERANCE"]
 
 #: The schema version this dcchar reads and writes.
 SCHEMA_VERSION = 1
@@ -80,6 +83,8 @@ class Key:
     choices : tuple of str
     sub : callable or None
         For tables: ``sub(value, path) -> dict`` that checks and normalizes the sub-table.
+    length : int or None
+        For ``"numbers"``: the number of items required (e.g. 2 for a low, high pair).
     """
 
     kind: str
@@ -91,6 +96,7 @@ class Key:
     allow_inf: bool = False
     choices: tuple = ()
     sub: object = None
+    length: int | None = None
 
     def allowed(self) -> str:
         if self.kind == "number":
@@ -101,10 +107,18 @@ class Key:
                 parts.append(f"{'<' if self.high_open else '<='} {self.high:g}")
             text = "a number" + (" " + " and ".join(parts) if parts else "")
             return text + (" (inf allowed)" if self.allow_inf else "")
+        if self.kind == "integer" and (self.low is not None or self.high is not None):
+            parts = ([f">= {self.low:g}"] if self.low is not None else []) + \
+                ([f"<= {self.high:g}"] if self.high is not None else [])
+            return "an integer " + " and ".join(parts)
         if self.kind == "choice":
             return f"one of {self.choices}"
         if self.kind == "strings":
             return f"an array of distinct names from {self.choices}"
+        if self.kind == "numbers" and self.length is not None:
+            lim = (f" (each >= {self.low:g} and <= {self.high:g})" if self.low is not None and self.high is not None
+                   else "")
+            return f"an array of {self.length} finite numbers{lim}"
         return {"integer": "an integer", "string": "a string", "text": "a non-empty string", "bool": "true or false",
                 "date": "a date (1970-01-31) or a string", "numbers": "an array of finite numbers",
                 "name": "a name of letters, digits, '_' or '-' (at most 64)", "table": "a table",
@@ -117,6 +131,8 @@ class Key:
             return self._number(value, path)
         if k == "integer":
             if isinstance(value, bool) or not isinstance(value, int):
+                raise bad(path, value, self.allowed())
+            if (self.low is not None and value < self.low) or (self.high is not None and value > self.high):
                 raise bad(path, value, self.allowed())
             return value
         if k in ("string", "text", "name"):
@@ -140,6 +156,8 @@ class Key:
         if k == "numbers":
             if not isinstance(value, list) or not value:
                 raise bad(path, value, "a non-empty array of finite numbers")
+            if self.length is not None and len(value) != self.length:
+                raise bad(path, value, self.allowed())
             return [self._number(v, f"{path}[{i}]") for i, v in enumerate(value)]
         if k == "strings":
             if not isinstance(value, list) or not value:
@@ -362,10 +380,91 @@ THRESHOLDS = {"starting_multiple": _pos(), "light_load_fraction": _nonneg(), "cu
               "speed_fraction": _pos()}
 GEARING = {"ratio": _pos(True), "efficiency": _num(True, low=0.0, high=1.0, low_open=True)}
 
+# --------------------------------------------------------------------------------------------
+# requirements of the selection matrix, and the tolerance study
+
+#: Figure names of the requirements (``dcchar.studies.selection.REQUIREMENT_TYPES``) and the load
+#: kinds with a default set (``dcchar.studies.selection.LOAD_KINDS``); written out here so that
+#: reading a file imports no study.
+REQUIREMENT_FIGURES = ("speed_regulation", "top_speed", "low_speed", "starting_torque", "starting_current",
+                       "acceleration_time", "speed_hold", "lowering", "efficiency", "constant_power_range",
+                       "lost_load", "lost_field")
+REQUIREMENT_DEFAULTS = ("hoist", "fan", "pump", "conveyor", "winder")
+#: The key that sets each figure's required value, with its unit in the name.
+REQUIREMENT_VALUE_KEYS = {
+    "speed_regulation_percent": "speed_regulation", "top_speed_rpm": "top_speed", "low_speed_rpm": "low_speed",
+    "starting_torque_ratio": "starting_torque", "starting_current_a": "starting_current",
+    "acceleration_time_s": "acceleration_time", "speed_hold_percent": "speed_hold", "lowering": "lowering",
+    "efficiency_percent": "efficiency", "constant_power_range_ratio": "constant_power_range", "lost_load": "lost_load",
+    "lost_load_rpm": "lost_load", "lost_field": "lost_field", "lost_field_rpm": "lost_field"}
+
+_SHARE = _num(low=0.0, high=1.0, low_open=True, high_open=True)
+REQUIREMENT_DETAILS = {
+    "speed_regulation": {"torque_n_m": _pos()}, "top_speed": {"min_field_share": _SHARE},
+    "low_speed": {"min_voltage_fraction": _num(low=0.0, high=1.0, low_open=True)},
+    "starting_torque": {"basis": Key("choice", choices=("breakaway", "running"))}, "starting_current": {},
+    "acceleration_time": {"target_fraction": _SHARE}, "speed_hold": {"step_n_m": _pos()},
+    "lowering": {"torque_n_m": _pos()}, "efficiency": {}, "constant_power_range": {"min_field_share": _SHARE},
+    "lost_load": {}, "lost_field": {},
+}
+_DETAIL_COMMON = {"marginal_percent": _num(low=0.0, high=100.0), "description": Key("string")}
+
+
+def _details(value, path):
+    schema = {f: _tab(lambda v, p, f=f: check_table(v, {**_DETAIL_COMMON, **REQUIREMENT_DETAILS[f]}, p,
+                                                    f"the details of the {f.replace('_', ' ')} requirement"))
+              for f in REQUIREMENT_FIGURES}
+    return check_table(value, schema, path, "requirement details (one table per figure)")
+
+
+REQUIREMENTS = {
+    "defaults": Key("choice", choices=REQUIREMENT_DEFAULTS),
+    "leave_out": Key("strings", choices=REQUIREMENT_FIGURES),
+    "starter_multiple": _num(low=0.0, high=100.0, low_open=True), "starting_resistance_ohm": _nonneg(),
+    "speed_regulation_percent": _nonneg(), "top_speed_rpm": _pos(), "low_speed_rpm": _pos(),
+    "starting_torque_ratio": _pos(), "starting_current_a": _pos(), "acceleration_time_s": _pos(),
+    "speed_hold_percent": _nonneg(), "lowering": Key("bool"), "efficiency_percent": _num(low=0.0, high=100.0),
+    "constant_power_range_ratio": _pos(), "lost_load": Key("bool"), "lost_load_rpm": _pos(),
+    "lost_field": Key("bool"), "lost_field_rpm": _pos(), "details": _tab(_details),
+}
+
+
+def _requirements(value, path):
+    out = check_table(value, REQUIREMENTS, path, "requirements")
+    for flag in ("lost_load", "lost_field"):
+        if f"{flag}_rpm" in out and flag in out:
+            raise ScenarioError(_join(path, flag), f"give {flag} = true (limit: the safe speed) or {flag}_rpm "
+                                                   "(limit in r/min), not both")
+    if "starter_multiple" in out and "starting_resistance_ohm" in out:
+        raise ScenarioError(_join(path, "starting_resistance_ohm"), "give starter_multiple or "
+                                                                    "starting_resistance_ohm, not both")
+    given = {}
+    for key, fig in REQUIREMENT_VALUE_KEYS.items():
+        if key in out and out[key] is not False:
+            given.setdefault(fig, key)
+    for i, fig in enumerate(out.get("leave_out", ())):
+        if fig in given:
+            raise bad(_join(path, "leave_out") + f"[{i}]", fig, f"a figure not also required here (remove "
+                                                                f"{given[fig]} or this entry)")
+    if not out.get("defaults") and not given:
+        raise ScenarioError(path, "no requirement given: name a default set (defaults = "
+                                  f"{' | '.join(repr(k) for k in REQUIREMENT_DEFAULTS)}) or give at least one "
+                                  f"requirement ({', '.join(REQUIREMENT_VALUE_KEYS)})")
+    return out
+
+
+_PERCENT90 = _num(low=0.0, high=90.0)
+_PAIR_C = Key("numbers", low=-60.0, high=250.0, length=2)
+TOLERANCE = {"resistance_percent": _PERCENT90, "winding_temperature_c": _PAIR_C, "magnetization_percent": _PERCENT90,
+             "magnet_temperature_c": _PAIR_C, "supply_voltage_percent": _PERCENT90,
+             "distribution": Key("choice", choices=("uniform", "normal")), "sigmas": _pos(),
+             "samples": Key("integer", low=1, high=1_000_000), "seed": Key("integer", low=0),
+             "robust_share_percent": _num(low=0.0, high=100.0)}
+
 _LOAD_COMMON = {"kind": Key("choice", choices=LOAD_KINDS), "description": Key("string"),
                 "control": _tab(lambda v, p: check_table(v, CONTROL, p, "control settings")),
                 "gearing": _tab(lambda v, p: check_table(v, GEARING, p, "a gearing")),
-                "load_inertia_kg_m2": _nonneg()}
+                "load_inertia_kg_m2": _nonneg(), "requirements": _tab(_requirements)}
 _QUADRATIC = {"rated_speed_rpm": _pos(True), "rated_torque_n_m": _pos(), "rated_power_kw": _pos(),
               "static_torque_n_m": _nonneg()}
 LOAD_FIELDS = {
@@ -416,6 +515,8 @@ DOCUMENT = {
     "loads": Key("table", required=True, sub=_named_tables(_load, "load")),
     "control": _tab(lambda v, p: check_table(v, CONTROL, p, "control settings")),
     "thresholds": _tab(lambda v, p: check_table(v, THRESHOLDS, p, "caution thresholds")),
+    "requirements": _tab(_requirements),
+    "tolerance": _tab(lambda v, p: check_table(v, TOLERANCE, p, "the tolerance study")),
 }
 
 
