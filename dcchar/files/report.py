@@ -8,6 +8,10 @@
     <load>/operating_points.csv  every operating point found, with the one the drive settles at
     <load>/curves.csv            every characteristic, long format (one row per connection and point)
     <load>/<view>.png, .svg      the five views with the load and operating points (figure loads only)
+    <load>/selection.csv, pass_share.png, .svg
+                                 loads with requirements: the choice of connection (the selection
+                                 matrix; see :mod:`dcchar.files.report_selection`), and with a
+                                 tolerance study also tolerance.csv, bands.csv, bands.png, .svg
     manifest.json                written last: every file with its size and SHA-256
 
 Units: SI (r/min, N·m, kW) or US (r/min, lbf·ft, hp); factors and sources in
@@ -239,8 +243,8 @@ def _grouped_cautions(comparison):
     return out
 
 
-def _summary(scenario, sections, units, figure_loads):
-    """(markdown, html) text of the summary."""
+def _summary(scenario, sections, units, figure_loads, choices=None):
+    """(markdown, html) text of the summary; ``choices``: load name -> ChoiceSection."""
     import html as h
 
     from .. import __version__
@@ -272,6 +276,12 @@ def _summary(scenario, sections, units, figure_loads):
         ht.append(f"<li><code>{h.escape(key)}</code>: {h.escape(m.label)} ({h.escape(rated)})</li>")
     md.append("")
     ht.append("</ul>")
+    if choices:  # the conclusion first: the choice on each load with requirements
+        from .report_selection import choice_html, choice_markdown
+
+        for section in choices.values():
+            md += choice_markdown(section)
+            ht += choice_html(section)
     for name, comparison in sections:
         heads, rows = display_table(comparison, units)
         md += [f"## Load `{name}`", "", scenario.load_description(name), "",
@@ -310,6 +320,25 @@ def _summary(scenario, sections, units, figure_loads):
     ht += ["<h2>Cautions that always apply</h2>", "<ul>"] + [f"<li>{h.escape(t)}</li>" for t in general]
     ht += ["</ul>", f"<p><b>{h.escape(DEFERENCE)}</b></p>", "</body></html>"]
     return "\n".join(md), "\n".join(ht) + "\n"
+
+
+def _choice(scenario, name, with_tolerance, folder, units, step, progress, done, total, files, clipped):
+    """The choice of connection on one load: matrix, optional tolerance study, files and figures."""
+    from .report_selection import ChoiceSection, choice_files
+
+    matrix = scenario.selection(name)
+    step(f"{name}: choice of connection")
+    tol = None
+    if with_tolerance:
+        def within(f):
+            if progress is not None:
+                progress(done[0], total, f"{name}: tolerance study {100 * f:3.0f} %")
+
+        tol = scenario.tolerance(name, progress=within, matrix=matrix)
+        step(f"{name}: tolerance study")
+    section = ChoiceSection(name, scenario.requirements_path(name), matrix, tol, scenario.load_description(name))
+    choice_files(scenario, section, folder, units, step, files, clipped)
+    return section
 
 
 # -------------------------------------------------------------------------------- the bundle
@@ -364,7 +393,8 @@ def _commit(tmp: Path, out: Path, names: list):
 
 
 def write_report(scenario, out_dir, *, units: str | None = None, force: bool = False, progress=None,
-                 figure_loads=None, points: int = 300) -> ReportResult:
+                 figure_loads=None, points: int = 300, selection: bool = True,
+                 tolerance: bool | None = None) -> ReportResult:
     """Write the report bundle of a scenario (see the module notes for the files and how).
 
     Parameters
@@ -383,6 +413,13 @@ def write_report(scenario, out_dir, *, units: str | None = None, force: bool = F
         tables).
     points : int, default 300
         Points of each characteristic sweep.
+    selection : bool, default True
+        Add the choice of connection for every load with requirements (the scenario's
+        ``[loads.<name>.requirements]`` or ``[requirements]`` tables).
+    tolerance : bool or None
+        Add the tolerance study to each choice (pass shares and curve bands; takes seconds per
+        load). None: when the scenario has a ``[tolerance]`` table. Its progress is reported
+        as the fraction done within the step.
 
     Returns
     -------
@@ -406,7 +443,12 @@ def write_report(scenario, out_dir, *, units: str | None = None, force: bool = F
                 raise ScenarioError("figure_loads", f"{n!r} is not allowed: expected one of {tuple(names)}")
     out = Path(os.fspath(out_dir))
     _check_target(out, force)
-    total = 2 * len(names) + len(FIGURE_VIEWS) * len(fig_loads) + 2
+    from .report_selection import figure_steps
+
+    choice_loads = scenario.requirement_loads if selection else ()
+    with_tolerance = bool(choice_loads) and (scenario.has_tolerance if tolerance is None else bool(tolerance))
+    total = (2 * len(names) + len(FIGURE_VIEWS) * len(fig_loads) + 2
+             + len(choice_loads) * (1 + int(with_tolerance) + figure_steps(with_tolerance)))
     done = [0]
 
     def step(what):
@@ -416,7 +458,7 @@ def write_report(scenario, out_dir, *, units: str | None = None, force: bool = F
 
     tmp = Path(tempfile.mkdtemp(prefix=f".{out.name}.partial-", dir=out.parent))
     try:
-        files, clipped, sections = [], {}, []
+        files, clipped, sections, choices = [], {}, [], {}
         from .scenario import dump_scenario
 
         files.append(atomic_write_text(tmp / "scenario.toml", dump_scenario(scenario)))
@@ -433,7 +475,10 @@ def write_report(scenario, out_dir, *, units: str | None = None, force: bool = F
             step(f"{name}/comparison.csv, operating_points.csv, curves.csv")
             if name in fig_loads:
                 _figures(scenario, name, comparison, curves, sub, units, step, files, clipped)
-        md, html_text = _summary(scenario, sections, units, fig_loads)
+            if name in choice_loads:
+                choices[name] = _choice(scenario, name, with_tolerance, sub, units, step, progress, done, total,
+                                        files, clipped)
+        md, html_text = _summary(scenario, sections, units, fig_loads, choices)
         files.append(atomic_write_text(tmp / "summary.md", md))
         files.append(atomic_write_text(tmp / "summary.html", html_text))
         step("summary.md, summary.html")
