@@ -135,3 +135,81 @@ def test_console_script_entry_point():
 
     eps = [e for e in entry_points(group="console_scripts") if e.name == "dcchar"]
     assert eps and eps[0].value == "dcchar.cli:main"
+
+
+# ---------------------------------------------------------------------------- select
+
+def _json_value(v):
+    if isinstance(v, float) and math.isnan(v):
+        return None
+    if isinstance(v, float) and math.isinf(v):
+        return "inf" if v > 0 else "-inf"
+    return v
+
+
+@pytest.mark.parametrize("name", ["hoist", "fan"])
+def test_select_json_equals_the_library(name):
+    r = run("select", EXAMPLES / f"{name}.toml", "--json")
+    assert r.returncode == 0, r.stderr
+    data = json.loads(r.stdout)
+    s = load_scenario(EXAMPLES / f"{name}.toml")
+    m = s.selection()
+    assert data["ranking"]["leader"] == m.leader
+    assert [e["candidate"] for e in data["ranking"]["entries"]] == list(m.ranking.order)
+    assert len(data["cells"]) == len(m.keys) * len(m.requirements)
+    for c in data["cells"]:
+        cell = m.cell(c["candidate"], c["requirement"])
+        # JSON floats are written with repr: equal to the bit
+        assert c["figure"] == _json_value(cell.value) and c["required"] == _json_value(cell.required)
+        assert c["margin"] == _json_value(cell.margin)
+        assert c["verdict"] == cell.verdict and c["reason"] == cell.reason
+    assert [c["code"] for c in data["cautions"]] == [c.code for c in m.cautions if c.code != "defer"]
+    assert "licensed" in data["deference"] and data["tolerance"] is None
+
+
+def test_select_text_is_an_aligned_table():
+    r = run("select", EXAMPLES / "hoist.toml")
+    assert r.returncode == 0, r.stderr
+    lines = r.stdout.splitlines()
+    head = next(i for i, line in enumerate(lines) if line.startswith("rank  connection"))
+    rule = lines[head + 1]
+    assert set(rule.replace(" ", "")) == {"-"}
+    s = load_scenario(EXAMPLES / "hoist.toml")
+    m = s.selection()
+    rows = lines[head + 2:head + 2 + len(m.keys)]
+    assert all(len(row) <= len(rule) for row in rows)
+    for row, key in zip(rows, m.ranking.order):
+        assert row.startswith(str(m.ranking[key].position)) and m.label(key) in row
+        symbols = [t for t in row.split() if t in ("+", "~", "x")]
+        expected = {"pass": "+", "marginal": "~", "fail": "x"}
+        assert symbols == [expected[m.cell(key, f).verdict] for f in m.requirements.figures]
+    assert m.ranking.summary in r.stdout and "cautions for the leading candidate" in r.stdout
+    assert "licensed practitioners" in r.stdout
+
+
+def test_select_exit_codes():
+    r = run("select", EXAMPLES / "hoist.toml", "--load", "empty_hook")
+    assert r.returncode == 2 and "loads.empty_hook.requirements" in r.stderr and "Traceback" not in r.stderr
+    r = run("select", EXAMPLES / "hoist.toml", "--load", "nosuch")
+    assert r.returncode == 2 and "--load" in r.stderr
+    assert run("select").returncode == 2  # the scenario is required
+
+
+def test_select_tolerance_shares_equal_the_library(tmp_path):
+    doc = load_scenario(EXAMPLES / "conveyor.toml").document
+    import copy
+
+    doc = copy.deepcopy(doc)
+    doc["tolerance"]["samples"] = 200
+    (tmp_path / "c.toml").write_text(dumps(doc))
+    r = run("select", tmp_path / "c.toml", "--load", "restart_loaded", "--json")
+    assert r.returncode == 0, r.stderr
+    assert "tolerance study" in r.stderr and "100 %" in r.stderr  # progress on stderr
+    data = json.loads(r.stdout)
+    t = load_scenario(tmp_path / "c.toml").tolerance("restart_loaded")
+    assert data["tolerance"]["samples"] == 200 and data["tolerance"]["seed"] == 7
+    for x in data["tolerance"]["shares"]:
+        s = t.study.share(x["candidate"], x["requirement"])
+        assert (x["passed"], x["marginal"], x["failed"], x["fragile"]) == (s.passed, s.marginal, s.failed, s.fragile)
+    r = run("select", tmp_path / "c.toml", "--load", "restart_loaded", "--no-tolerance")
+    assert r.returncode == 0 and "share of samples" not in r.stdout and r.stderr == ""
