@@ -141,11 +141,9 @@ class SampleCase:
         return self._memo_get("start", run)
 
     def _locked(self, ev):
-        """Standstill current as :meth:`Machine.locked_rotor_current` takes it (series branch in full). [A]"""
-        loop = ev.circuit[ev.names.index("R_a")] + ev.circuit[ev.names.index("R_x")]
-        if "R_s" in ev.names:
-            loop = loop + ev.circuit[ev.names.index("R_s")] * ev.circuit[ev.names.index("d")]
-        return np.maximum(self.voltage - self.machine.brush_drop, 0.0) / loop * np.ones((self.n, 1))
+        """Standstill current (E = 0), as :meth:`Machine.locked_rotor_current` gives it. [A]"""
+        i0 = np.asarray(ev.standstill_current(), dtype=float).reshape(-1, 1)
+        return np.broadcast_to(i0, (self.n, 1))
 
     def starting_torque(self):
         return self._start_state()["torque"]
