@@ -11,6 +11,7 @@ checked against published values in the tests of the models and studies).
 from __future__ import annotations
 
 import asyncio
+import concurrent.futures
 import datetime
 import html
 import math
@@ -367,7 +368,10 @@ def test_coalescer_drops_stale_states_in_a_burst():
         await asyncio.sleep(0.1)
         return c
 
-    c = asyncio.run(burst())
+    # a thread of its own, so that an event loop left running by another test (the browser
+    # fixture's) does not stand in the way of asyncio.run
+    with concurrent.futures.ThreadPoolExecutor(1) as pool:
+        c = pool.submit(asyncio.run, burst()).result()
     assert state["seen"][0] == 1  # the first event is answered at once
     assert state["seen"][-1] == 20  # the newest value is always processed
     assert len(state["seen"]) < 10  # and most of the stale ones were dropped
