@@ -320,3 +320,27 @@ def test_brute_force_finds_no_missed_root(m, load):
         if jump:
             continue
         assert found.size and np.min(np.abs(found - 0.5 * (a + b))) <= step, (a, b, found)
+
+
+def test_root_next_to_a_flux_reversal_is_found():
+    """A differential compound whose flux passes through zero at heavy load has a pole in its speed;
+    a root just short of the safe speed beside the pole must not be lost between grid nodes.
+    (Case found by the brute-force property test; regression, not published.)"""
+    from dcchar.models.connections import Compound
+    from dcchar.models.loads import Linear, Quadratic
+    from dcchar.models.magnetics import Froehlich
+
+    m = Compound(armature_resistance=0.30078125, safe_speed=211.0,
+                 magnetization=Froehlich(a=200.0, b=500.0, reference_speed=120.0), field_resistance=230.0,
+                 series_turns=6.0, series_resistance=0.03, field_turns=3504.0, kind="differential")
+    load = Linear(coefficient=0.5) + Quadratic(rated_speed=100.0, rated_torque=1.0)
+    r = operating_points(m, load, 230.0)
+    ia = np.linspace(560.0, 584.0, 240_001)
+    st_ = m.state_arrays(230.0, ia)
+    with np.errstate(all="ignore"):
+        f = st_["shaft_torque"] - load.torque(st_["speed"])
+    ok = np.isfinite(f) & (np.abs(st_["speed"]) <= 211.0)
+    c = np.flatnonzero(ok[:-1] & ok[1:] & (np.sign(f[:-1]) * np.sign(f[1:]) < 0))
+    assert c.size == 1
+    found = [p.armature_current for p in r.points]
+    assert min(abs(x - ia[c[0]]) for x in found) < 1e-3

@@ -207,6 +207,35 @@ def _hidden_pairs(ev, load, x, f, valid, jumps, i0, ws, depth=3, n_local=33):
 
 
 
+def _edge_nodes(ev, load, x, w, valid, jumps, i0, ws, depth=2, n_local=33):
+    """Extra nodes in cells where the grid crosses the edge of the safe region or a pole of the speed
+    (the flux passing through zero, e.g. a differential compound at heavy load): a root can lie
+    there between two nodes that a coarse grid sees only as "one valid, one not"."""
+    fin = np.isfinite(w)
+    # through a pole, from or to a node within the safe speed (across a pole the speed grows
+    # towards it on both sides, so two nodes beyond the safe speed enclose no safe region)
+    flips = (np.signbit(w[:-1]) != np.signbit(w[1:])) & fin[:-1] & fin[1:] & (valid[:-1] | valid[1:])
+    # a valid node next to one with no finite speed: the bracket test cannot look across it
+    blind = (valid[:-1] & ~fin[1:]) | (~fin[:-1] & valid[1:])
+    cells = np.flatnonzero(flips | blind)
+    skip = set(jumps)
+    out_x, out_f, out_v = [], [], []
+    for c in cells:
+        if c in skip:
+            continue
+        xs = np.linspace(x[c], x[c + 1], n_local)[1:-1]
+        wl, tl = ev.speed_torque(xs * i0)
+        fl = tl - np.asarray(load.torque(wl), dtype=float)
+        vl = np.isfinite(fl) & np.isfinite(wl) & (np.abs(wl) <= ws)
+        out_x.append(xs), out_f.append(fl), out_v.append(vl)
+        if depth > 1:
+            ex, ef, evv = _edge_nodes(ev, load, xs, wl, vl, (), i0, ws, depth - 1, n_local)
+            out_x.append(ex), out_f.append(ef), out_v.append(evv)
+    if not out_x:
+        return np.empty(0), np.empty(0), np.empty(0, bool)
+    return np.concatenate(out_x), np.concatenate(out_f), np.concatenate(out_v)
+
+
 def _intervals(currents, mask):
     idx = np.flatnonzero(mask)
     if idx.size == 0:

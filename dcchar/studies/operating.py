@@ -37,7 +37,8 @@ from ..errors import ParameterError, SolverError
 from ..models.characteristic import LOSS_FIELDS
 from ..models.units import RPM
 from ..models.validation import choice, positive, real
-from ._bracketing import _Evaluator, _hidden_pairs, _intervals, _scalar_functions, _sign_change_cells, _unit_grid
+from ._bracketing import (_edge_nodes, _Evaluator, _hidden_pairs, _intervals, _scalar_functions, _sign_change_cells,
+                          _unit_grid)
 
 __all__ = ["Margins", "OperatingPoint", "OperatingResult", "SpeedRegulation", "StartingPoint", "StartingResult",
            "operating_points", "speed_regulation", "starting", "METHODS"]
@@ -375,6 +376,9 @@ def operating_points(machine, load, voltage=None, *, grid: int = 112, method: st
         inside = np.isfinite(w) & (np.abs(w) <= ws)
         valid = inside & finite
         hx, hf, hv = _hidden_pairs(ev, load, x, f, valid, jumps, i0, ws)
+        ex, ef, evl = _edge_nodes(ev, load, x, w, valid, jumps, i0, ws)
+        if ex.size:
+            hx, hf, hv = np.concatenate([hx, ex]), np.concatenate([hf, ef]), np.concatenate([hv, evl])
     # the nodes either side of standstill (x = 1 -/+ tiny): torque as the rotor begins to turn.
     # Normally the speed is positive below I_0; where the flux has reversed at standstill (a
     # differential compound) the positive-speed side is above it.
@@ -387,7 +391,7 @@ def operating_points(machine, load, voltage=None, *, grid: int = 112, method: st
         xs = np.concatenate([x, hx])[order]
         fs_ = np.concatenate([f, hf])[order]
         vs = np.concatenate([valid, hv])[order]
-        fin = np.concatenate([finite, hv])[order]
+        fin = np.concatenate([finite, np.isfinite(hf)])[order]
         rank = np.argsort(order)
         jumps_s = tuple(int(rank[j]) for j in jumps)
     else:
