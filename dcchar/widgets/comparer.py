@@ -137,6 +137,9 @@ class Comparer:
     results_panel, cautions_panel, status_line : HTML widgets (``kit-results``, ``kit-cautions``,
         ``kit-status``)
     export_folder, export_button, reset_button
+    panels : dict
+        title -> hosted panel (see :meth:`attach` and :meth:`add_panels`), shown in
+        ``panel_tabs`` (class ``kit-panel-tabs``) under the export row.
     """
 
     def __init__(self, machines=None, load=None, settings=None, *, title: str = "", family_spec=None,
@@ -277,6 +280,9 @@ class Comparer:
         self.export_button.add_class("kit-export")
         self.export_button.on_click(lambda _: self._guard("export", self.export))
 
+        self.panels = {}
+        self.panel_tabs = w.Tab(children=())
+        self.panel_tabs.add_class("kit-panel-tabs")
         self.widget = self._layout()
         self.widget.add_class("kit-comparer")
         self._recompute()
@@ -360,7 +366,8 @@ class Comparer:
             from ..studies.rating import equal_rating_family
 
             fam = equal_rating_family(**{**self._spec, "series_share": share})
-            self._families[key] = {k: fam[k] for k in self._base if k in fam}
+            # candidates the family does not hold (added later) stay as they are
+            self._families[key] = {k: fam.get(k, m) for k, m in self._base.items()}
         return self._families[key]
 
     def selected(self) -> dict:
@@ -403,6 +410,79 @@ class Comparer:
             for cb in self.candidates.values():
                 cb.value = True
         self._coalescer.request()
+
+    def add_candidate(self, machine, key=None) -> str:
+        """Add a machine to the candidates (ticked) and compare again; returns its key (the
+        connection name, numbered when taken, unless ``key`` is given)."""
+        from ..charts.style import style_key
+
+        if not hasattr(machine, "characteristic"):
+            raise ParameterError("machine", machine, "a machine of dcchar.models.connections")
+        if key is None:
+            base = style_key(machine).replace("/", "_")
+            key, n = base, 1
+            while key in self._base:
+                n += 1
+                key = f"{base}_{n}"
+        elif key in self._base:
+            raise ParameterError("key", key, f"a key not taken by {tuple(self._base)}")
+        self._base = {**self._base, key: machine}
+        self._families = {}
+        self._styles = dict(zip(self._base, styles_for(list(self._base.values()))))
+        cb = w.Checkbox(value=True, description=machine.label + (f" ({machine.name})" if machine.name else ""),
+                        indent=False, layout=w.Layout(width="auto"))
+        cb.add_class("kit-candidate")
+        cb.add_class("kit-candidate-" + key.replace("_", "-"))
+        cb.observe(self._on_control, names="value")
+        self.candidates[key] = cb
+        s = self._styles[key]
+        row = w.HBox([w.HTML(swatch_html(s.color, s.linestyle), layout=w.Layout(width="30px")), cb],
+                     layout=w.Layout(height="24px"))
+        self._candidate_box.children = tuple(self._candidate_box.children) + (row,)
+        self._coalescer.request()
+        return key
+
+    def attach(self, panel, title: str):
+        """Host a panel (e.g. :class:`~dcchar.widgets.selection_panel.SelectionPanel`) in a tab
+        under the comparer. After each comparison the comparer calls ``panel.update(machines,
+        load, settings)`` with the ticked candidates, the load and the control settings, when the
+        panel has an ``update``; a panel with an ``on_use`` attribute of None gets
+        :meth:`add_candidate`. Returns the panel."""
+        if title in self.panels:
+            raise ParameterError("title", title, f"a title not taken by {tuple(self.panels)}")
+        if hasattr(panel, "on_use") and panel.on_use is None:
+            panel.on_use = self.add_candidate
+            if hasattr(panel, "use_button") and getattr(panel, "machine", None) is not None:
+                panel.use_button.disabled = False
+        self.panels[title] = panel
+        self.panel_tabs.children = tuple(self.panel_tabs.children) + (panel.widget,)
+        self.panel_tabs.set_title(len(self.panels) - 1, title)
+        if self.panel_tabs not in self.widget.children:
+            self.widget.children = tuple(self.widget.children) + (_section("Choice, identification and start-up"),
+                                                                  self.panel_tabs)
+        if hasattr(panel, "update") and self.comparison is not None:
+            self._guard(title, lambda: panel.update(self.selected(), self.load, self.current_settings()))
+        return panel
+
+    def add_panels(self, selection: bool = True, identification: bool = True) -> dict:
+        """Attach the choice-of-connection panel and the identification panel, started on the
+        comparer's current candidates, load and settings. Returns :attr:`panels`."""
+        if selection:
+            from .selection_panel import SelectionPanel
+
+            self.attach(SelectionPanel(self.selected(), self.load, self.current_settings()), "choice of connection")
+        if identification:
+            from .identification_panel import IdentificationPanel
+
+            self.attach(IdentificationPanel(), "machine from its nameplate")
+        return self.panels
+
+    def _update_panels(self, machines, load, settings):
+        for title, panel in self.panels.items():
+            if hasattr(panel, "update"):
+                t0 = time.perf_counter()
+                self._guard(title, lambda: panel.update(machines, load, settings))
+                self.timings[f"panel {title}"] = time.perf_counter() - t0
 
     def refresh(self):
         """Compare again now (also runs any update still waiting for its quiet time)."""
@@ -519,6 +599,7 @@ class Comparer:
         if notes:
             text += " — note: " + "; ".join(notes)
         self.status_line.value = status_html(text)
+        self._update_panels(machines, load, settings)
 
     # ------------------------------------------------------------------ chart data
     @staticmethod
