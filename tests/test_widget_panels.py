@@ -269,7 +269,7 @@ def test_comparer_hosts_panels_and_use_adds_candidate():
     comparer = Comparer(title="Panels")
     panels = comparer.add_panels()
     sel = panels["choice of connection"]
-    ident = panels["machine from its nameplate"]
+    ident = panels["nameplate and tests"]
     assert comparer.panel_tabs in comparer.widget.children
     # a slider change reaches the matrix
     comparer.controls["voltage"].value = 200.0

@@ -458,7 +458,7 @@ class Comparer:
         self.panel_tabs.children = tuple(self.panel_tabs.children) + (panel.widget,)
         self.panel_tabs.set_title(len(self.panels) - 1, title)
         if self.panel_tabs not in self.widget.children:
-            self.widget.children = tuple(self.widget.children) + (_section("Choice, identification and start-up"),
+            self.widget.children = tuple(self.widget.children) + (_section("Choice of connection and machine data"),
                                                                   self.panel_tabs)
         if hasattr(panel, "update") and self.comparison is not None:
             self._guard(title, lambda: panel.update(self.selected(), self.load, self.current_settings()))
@@ -474,7 +474,7 @@ class Comparer:
         if identification:
             from .identification_panel import IdentificationPanel
 
-            self.attach(IdentificationPanel(), "machine from its nameplate")
+            self.attach(IdentificationPanel(), "nameplate and tests")
         return self.panels
 
     def _update_panels(self, machines, load, settings):

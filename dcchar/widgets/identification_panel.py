@@ -302,11 +302,13 @@ class IdentificationPanel:
                 rows.append(("Swinburne", k, _fmt(v), unit, _fmt(v - se), _fmt(v + se),
                              "from the no-load run; the rotational loss replaces the estimate's"))
         body = "".join(
-            f'<tr data-kind="{e(k)}" data-name="{e(n)}"><td class="kit-name">{e(k)}</td><td class="kit-name">{e(n.replace("_", " "))}'
-            f'</td><td data-col="value">{e(v)}</td><td>{e(u)}</td><td>{e(lo)}</td><td>{e(hi)}</td>'
+            f'<tr data-kind="{e(k)}" data-name="{e(n)}"><td class="kit-name">{e(k)}</td>'
+            f'<td class="kit-name">{e(n.replace("_", " "))}</td><td data-col="value">{e(v)}</td>'
+            f'<td>{e(u)}</td><td>{e(lo)}</td><td>{e(hi)}</td>'
             f'<td class="kit-basis">{e(b)}</td></tr>' for k, n, v, u, lo, hi, b in rows)
-        return (f"{_CSS}<table><thead><tr><th>kind</th><th>quantity</th><th>value</th><th>unit</th><th>low</th>"
-                f"<th>high</th><th>basis</th></tr></thead><tbody>{body}</tbody></table>")
+        return (f"{_CSS}<div style='line-height:1.3'><table><thead><tr><th>kind</th><th>quantity</th><th>value</th>"
+                f"<th>unit</th><th>low</th>"
+                f"<th>high</th><th>basis</th></tr></thead><tbody>{body}</tbody></table></div>")
 
     def _repr_mimebundle_(self, **kwargs):
         return self.widget._repr_mimebundle_(**kwargs)

@@ -35,6 +35,8 @@ DISPLAY_UNITS = {"rad/s": ("r/min", RPM), "-": ("× (per unit)", 1.0), "%": ("%"
 
 _CSS = """
 <style>
+.kit-matrix .widget-html-content, .kit-ranking .widget-html-content, .kit-selection-cautions .widget-html-content
+  { line-height: 1.3; }
 .kit-matrix table { border-collapse: collapse; font-size: 12px; font-family: 'DejaVu Sans', sans-serif; }
 .kit-matrix th, .kit-matrix td { border: 1px solid #c8d2dc; padding: 3px 6px; vertical-align: top; }
 .kit-matrix th { background: #eef2f6; font-weight: bold; }
@@ -42,7 +44,7 @@ _CSS = """
 .kit-matrix td.kit-v-marginal { background: #fff4d6; }
 .kit-matrix td.kit-v-fail { background: #fbe3e0; }
 .kit-matrix .kit-why { font-size: 10.5px; color: #333; max-width: 190px; white-space: normal; }
-.kit-matrix .kit-nums { font-size: 11px; white-space: nowrap; }
+.kit-matrix .kit-nums { font-size: 11px; }
 .kit-ranking li { font-size: 12px; margin: 2px 0; }
 </style>
 """
@@ -195,7 +197,7 @@ class SelectionPanel:
                 use.add_class("kit-req-use")
                 use.observe(lambda ch: self._guard("requirements", self._on_edit), names="value")
                 label = w.HTML(f'<span style="font-size:12px">{html.escape(r.title)} '
-                               f'<i>{html.escape(r.comparison)}</i></span>', layout=w.Layout(width="260px"))
+                               f'<i>{html.escape(r.comparison)}</i></span>', layout=w.Layout(width="360px"))
                 if r.comparison == "yes/no" or r.value is None:
                     box = None
                     what = "required" if r.comparison == "yes/no" else "the machine's safe speed"
@@ -351,7 +353,8 @@ class SelectionPanel:
                            f'<div class="kit-nums">margin {e(_margin_text(c.margin))}</div>'
                            f'<div class="kit-why">{e(c.reason)}</div></td>')
             rows.append(f'<tr data-key="{e(key)}">' + "".join(tds) + "</tr>")
-        return f'{_CSS}<table><thead><tr><th>candidate</th>{head}</tr></thead><tbody>{"".join(rows)}</tbody></table>'
+        return (f'{_CSS}<div style="line-height:1.3"><table><thead><tr><th>candidate</th>{head}</tr></thead>'
+                f'<tbody>{"".join(rows)}</tbody></table></div>')
 
     @staticmethod
     def ranking_html(matrix) -> str:
@@ -360,8 +363,8 @@ class SelectionPanel:
 
         e = html.escape
         items = "".join(f'<li data-key="{e(x.key)}">{e(x.label)}: {e(x.reason)}</li>' for x in matrix.ranking.entries)
-        return (f"{_CSS}<div style='font-size:12px'><b>{e(matrix.ranking.summary)}</b></div><ol>{items}</ol>"
-                f"<div style='font-size:11px;color:#555'>{e(RANKING_RULE)}</div>")
+        return (f"{_CSS}<div style='line-height:1.3'><div style='font-size:12px'><b>{e(matrix.ranking.summary)}</b>"
+                f"</div><ol>{items}</ol><div style='font-size:11px;color:#555'>{e(RANKING_RULE)}</div></div>")
 
     @staticmethod
     def cautions_html(matrix) -> str:
@@ -376,8 +379,8 @@ class SelectionPanel:
                         f'border-left:4px solid {"#b42318" if c.severity == "danger" else "#c98a00"}">'
                         f'{e(c.text)}<div style="font-size:11px;color:#4a4a4a">{e(c.reason)}</div></div>'
                         for c in matrix.cautions)
-        return (f"<div style='font-size:12px'>For {e(who)}:</div>{items}"
-                f"<div style='font-size:12px;margin-top:4px'>{e(DEFERENCE)}</div>")
+        return (f"<div style='line-height:1.3'><div style='font-size:12px'>For {e(who)}:</div>{items}"
+                f"<div style='font-size:12px;margin-top:4px'>{e(DEFERENCE)}</div></div>")
 
     def _repr_mimebundle_(self, **kwargs):
         return self.widget._repr_mimebundle_(**kwargs)
