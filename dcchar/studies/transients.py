@@ -461,8 +461,8 @@ def simulate(machine, load=None, *, armature_voltage, duration, field_voltage=No
     initial_speed : float, default 0
         [rad/s]
     initial_current : float, optional
-        Armature current at t = 0 [A]; default: the steady current at ``initial_speed`` on the
-        supply the machine ran from before (its rated or the given voltage) - see braking.
+        Armature current at t = 0 [A] (where the loop has inductance); default 0. The braking
+        studies pass the steady motoring current.
     initial_field_current : float, optional
         [A]; default: its steady value.
     stop_speed : float, optional
