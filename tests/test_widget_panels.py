@@ -295,3 +295,63 @@ def test_comparer_hosts_panels_and_use_adds_candidate():
     comparer.controls["series_share"].value = 0.5
     comparer.refresh()
     assert comparer.machines()[new] is ident.machine
+    # the start panel follows the ticked candidates and simulates them on the button
+    start = panels["start-up and duty"]
+    assert set(start.machines) == set(comparer.selected()) and start.stale
+    comparer.candidates["series"].value = True
+    comparer.refresh()
+    assert "series" in start.machines
+
+
+# ---------------------------------------------------------------------------- start-up and duty
+def test_start_panel_shows_the_simulated_starts(family, hoist):
+    from dcchar.studies.comparison import apply_settings
+    from dcchar.studies.duty_machine import MachineSegment, duty_summary
+    from dcchar.studies.starter_steps import starter_steps
+    from dcchar.studies.transients import simulate_start
+    from dcchar.widgets.start_panel import StartPanel
+
+    few = {k: family[k] for k in ("shunt", "series")}
+    settings = ControlSettings(voltage=210.0)
+    panel = StartPanel(few, hoist, settings, sections=3, limit=2.0, run_time=20.0, rest_time=40.0)
+    panel.brake.value = True
+    panel.run_button.click()
+    assert panel.last_error is None and not panel.stale
+    for key, m0 in few.items():
+        m = apply_settings(m0, settings)
+        design = starter_steps(210.0, m.loop_resistance(), 2.0 * m.rating.current, sections=3,
+                               brush_drop=m.brush_drop, rated_current=m.rating.current)
+        tr = simulate_start(m, hoist, 210.0, starter=design, holding_brake=True)
+        assert panel.transients[key].peak_current == tr.peak_current
+        row = re.search(rf'<tr data-key="{key}">.*?</tr>', panel.start_table.value, re.S).group(0)
+        assert f'<td data-col="peak_current">{tr.peak_current:.4g}</td>' in row
+        duty = duty_summary(m, [MachineSegment(kind="start", transient=tr),
+                                MachineSegment(duration=20.0, load=hoist, kind="run"),
+                                MachineSegment(duration=40.0, kind="rest")], voltage=210.0)
+        row = re.search(rf'<tr data-key="{key}">.*?</tr>', panel.duty_table.value, re.S).group(0)
+        assert f'<td data-col="rms_current">{duty.rms_current:.4g}</td>' in row
+        assert f'<td data-col="energy_drawn">{duty.energy_drawn / 1e3:.4g}</td>' in row
+        assert html.escape(duty.duty.designation) in row
+        # the chart draws the study's current against time
+        assert np.array_equal(panel.chart["current"][key].get_ydata(), tr.armature_current)
+        assert np.allclose(panel.chart["speed"][key].get_ydata(), tr.speed / RPM)
+        assert [ln.get_xdata()[0] for ln in panel.chart["switches"][key]] == list(tr.switch_times)
+    assert bytes(panel.image.value).startswith(PNG)
+    assert "kit-start" in panel.start_table._dom_classes and "kit-duty" in panel.duty_table._dom_classes
+
+
+def test_start_panel_export_and_stale(family, hoist, tmp_path):
+    from dcchar.widgets.start_panel import StartPanel
+
+    panel = StartPanel({"shunt": family["shunt"]}, hoist, run_time=10.0, rest_time=0.0)
+    panel.run()
+    paths = panel.export(tmp_path)
+    assert sorted(p.suffix for p in paths) == [".png", ".svg"]
+    assert paths[0].read_bytes()[:8] == PNG or paths[1].read_bytes()[:8] == PNG
+    good = panel.transients
+    panel.update(settings=ControlSettings(voltage=200.0))
+    assert panel.stale and panel.transients is good
+    panel.update(machines={})
+    panel.run_button.click()
+    assert isinstance(panel.last_error, ParameterError) and "candidate" in panel.error_line.value
+    assert panel.transients is good and bytes(panel.image.value).startswith(PNG)

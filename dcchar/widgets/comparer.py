@@ -458,15 +458,16 @@ class Comparer:
         self.panel_tabs.children = tuple(self.panel_tabs.children) + (panel.widget,)
         self.panel_tabs.set_title(len(self.panels) - 1, title)
         if self.panel_tabs not in self.widget.children:
-            self.widget.children = tuple(self.widget.children) + (_section("Choice of connection and machine data"),
-                                                                  self.panel_tabs)
+            head = _section("Choice of connection, machine data, start-up and duty")
+            self.widget.children = tuple(self.widget.children) + (head, self.panel_tabs)
         if hasattr(panel, "update") and self.comparison is not None:
             self._guard(title, lambda: panel.update(self.selected(), self.load, self.current_settings()))
         return panel
 
-    def add_panels(self, selection: bool = True, identification: bool = True) -> dict:
-        """Attach the choice-of-connection panel and the identification panel, started on the
-        comparer's current candidates, load and settings. Returns :attr:`panels`."""
+    def add_panels(self, selection: bool = True, identification: bool = True, start: bool = True) -> dict:
+        """Attach the choice-of-connection panel, the identification panel and the start-up and
+        duty panel, started on the comparer's current candidates, load and settings. Returns
+        :attr:`panels`."""
         if selection:
             from .selection_panel import SelectionPanel
 
@@ -475,6 +476,12 @@ class Comparer:
             from .identification_panel import IdentificationPanel
 
             self.attach(IdentificationPanel(), "nameplate and tests")
+        if start:
+            from .start_panel import StartPanel
+
+            folder = self.export_folder.value
+            self.attach(StartPanel(self.selected(), self.load, self.current_settings(), export_folder=folder),
+                        "start-up and duty")
         return self.panels
 
     def _update_panels(self, machines, load, settings):
