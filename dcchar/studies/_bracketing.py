@@ -244,3 +244,46 @@ def _intervals(currents, mask):
     first = np.concatenate([idx[:1], idx[cut + 1]])
     last = np.concatenate([idx[cut], idx[-1:]])
     return tuple((float(currents[a]), float(currents[b])) for a, b in zip(first, last))
+
+
+def settling_cells(ev, load_torque, n, grid, safe_speed, breakaway):
+    """Bracketing grid over ``n`` rows of settings, and for each row the cell of the point the
+    drive settles at when started from rest (vectorized over the rows).
+
+    Returns a dict with the grid (``i0`` (n, 1), ``x``, ``jumps``, ``im``, ``Ia``), the values on it
+    (``w``, ``t``, ``f``, ``finite``, ``valid``, ``sc`` sign-change cells), the start figures
+    (``t_start``, ``f_start``, ``f_back``, ``live``, ``starts``, ``back``) and ``cell``/``found``.
+    """
+    i0 = np.broadcast_to(np.asarray(ev.standstill_current(), dtype=float).reshape(-1, 1), (n, 1))
+    x, jumps = _unit_grid(int(grid))
+    im = jumps[1]  # node just below standstill (x = 1 - tiny)
+    Ia = i0 * x
+    with np.errstate(all="ignore"):
+        w, t = ev.speed_torque(Ia)
+        w, t = np.broadcast_to(w, Ia.shape), np.broadcast_to(t, Ia.shape)
+        f = t - np.asarray(load_torque(w), dtype=float)
+        finite = np.isfinite(w) & np.isfinite(f)
+        valid = finite & (np.abs(w) <= safe_speed)
+    sc = _sign_change_cells(f, finite, valid, jumps)
+    rows = np.arange(n)
+    # either side of standstill; the positive-speed side is above I_0 where the flux has reversed
+    up = ~(w[:, im] > 0)
+    fwd_node, bwd_node = np.where(up, im + 1, im), np.where(up, im, im + 1)
+    t_start, f_start, f_back = t[rows, fwd_node], f[rows, fwd_node], f[rows, bwd_node]
+    live = i0[:, 0] > 0
+    starts = (t_start > breakaway) & (f_start > 0) & live
+    back = ~starts & (f_back < 0) & live
+    # the first event met walking down from standstill (a bracket, or a node beyond the safe speed)
+    ev_d = sc[:, :im] | ~valid[:, :im]
+    has_d = ev_d.any(axis=1)
+    cd = im - 1 - np.argmax(ev_d[:, ::-1], axis=1)
+    # ... and walking up
+    ev_u = sc[:, im + 1:] | ~valid[:, im + 2:]
+    has_u = ev_u.any(axis=1)
+    cu = im + 1 + np.argmax(ev_u, axis=1)
+    down = (starts & ~up) | (back & up)
+    ok_d = down & has_d & sc[rows, cd]
+    ok_u = ~down & (starts | back) & has_u & sc[rows, np.minimum(cu, sc.shape[1] - 1)]
+    return dict(i0=i0, x=x, jumps=jumps, im=im, Ia=Ia, w=w, t=t, f=f, finite=finite, valid=valid, sc=sc,
+                t_start=t_start, f_start=f_start, f_back=f_back, live=live, starts=starts, back=back,
+                cell=np.where(down, cd, cu), found=ok_d | ok_u)

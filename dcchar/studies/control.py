@@ -27,7 +27,7 @@ import numpy as np
 from ..errors import ParameterError, SolverError
 from ..models.units import RPM
 from ..models.validation import choice, positive, real
-from ._bracketing import _Evaluator, _sign_change_cells, _unit_grid
+from ._bracketing import _Evaluator, settling_cells
 from .operating import _check_load, operating_points
 
 __all__ = ["CONTROL_PARAMETERS", "ControlSweep", "control_sweep"]
@@ -235,39 +235,10 @@ def control_sweep(machine, load, parameter: str, values, *, voltage=None, grid: 
         raise ParameterError("grid", grid, "an integer >= 16 (number of bracketing nodes)")
     n = vals.size
     ev = _Evaluator(machine, V, over)
-    i0 = np.broadcast_to(np.asarray(ev.standstill_current(), dtype=float).reshape(-1, 1), (n, 1))
-    x, jumps = _unit_grid(int(grid))
-    im = jumps[1]  # node just below standstill (x = 1 - tiny)
     breakaway = float(load.breakaway_torque)
-    Ia = i0 * x
-    with np.errstate(all="ignore"):
-        w, t = ev.speed_torque(Ia)
-        w, t = np.broadcast_to(w, Ia.shape), np.broadcast_to(t, Ia.shape)
-        f = t - np.asarray(load.torque(w), dtype=float)
-        finite = np.isfinite(w) & np.isfinite(f)
-        valid = finite & (np.abs(w) <= ws)
-    sc = _sign_change_cells(f, finite, valid, jumps)
-    rows = np.arange(n)
-    # either side of standstill; the positive-speed side is above I_0 where the flux has reversed
-    up = ~(w[:, im] > 0)
-    fwd_node, bwd_node = np.where(up, im + 1, im), np.where(up, im, im + 1)
-    t_start, f_start, f_back = t[rows, fwd_node], f[rows, fwd_node], f[rows, bwd_node]
-    live = i0[:, 0] > 0
-    starts = (t_start > breakaway) & (f_start > 0) & live
-    back = ~starts & (f_back < 0) & live
-    # the first event met walking down from standstill (a bracket, or a node beyond the safe speed)
-    ev_d = sc[:, :im] | ~valid[:, :im]
-    has_d = ev_d.any(axis=1)
-    cd = im - 1 - np.argmax(ev_d[:, ::-1], axis=1)
-    # ... and walking up
-    ev_u = sc[:, im + 1:] | ~valid[:, im + 2:]
-    has_u = ev_u.any(axis=1)
-    cu = im + 1 + np.argmax(ev_u, axis=1)
-    down = (starts & ~up) | (back & up)
-    ok_d = down & has_d & sc[rows, cd]
-    ok_u = ~down & (starts | back) & has_u & sc[rows, np.minimum(cu, sc.shape[1] - 1)]
-    cell = np.where(down, cd, cu)
-    found = ok_d | ok_u
+    g = settling_cells(ev, load.torque, n, grid, ws, breakaway)
+    i0, Ia, f, t_start, starts, back, cell, found = (g[k] for k in ("i0", "Ia", "f", "t_start", "starts", "back",
+                                                                  "cell", "found"))
     sel = np.flatnonzero(found)
     reason = np.full(n, "", dtype=object)
     reason[(starts | back) & ~found] = "runs away"

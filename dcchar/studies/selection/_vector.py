@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from .._bracketing import _Evaluator, _sign_change_cells, _unit_grid
+from .._bracketing import _Evaluator, settling_cells
 from ..control import _anderson_bjorck
 
 __all__ = []
@@ -89,35 +89,9 @@ def settle(ev, load_torque, breakaway, safe_speed, grid: int = 112, tracked: boo
         point, "cannot start", "runs away"). nan where there is no point.
     """
     n = ev.rows()
-    i0 = np.broadcast_to(np.asarray(ev.standstill_current(), dtype=float).reshape(-1, 1), (n, 1))
-    x, jumps = _unit_grid(int(grid))
-    im = jumps[1]
-    Ia = i0 * x
-    with np.errstate(all="ignore"):
-        w, t = ev.speed_torque(Ia)
-        w, t = np.broadcast_to(w, Ia.shape), np.broadcast_to(t, Ia.shape)
-        f = t - np.asarray(load_torque(w), dtype=float)
-        finite = np.isfinite(w) & np.isfinite(f)
-        valid = finite & (np.abs(w) <= safe_speed)
-    sc = _sign_change_cells(f, finite, valid, jumps)
-    rows = np.arange(n)
-    up = ~(w[:, im] > 0)
-    fwd_node, bwd_node = np.where(up, im + 1, im), np.where(up, im, im + 1)
-    t_start, f_start, f_back = t[rows, fwd_node], f[rows, fwd_node], f[rows, bwd_node]
-    live = i0[:, 0] > 0
-    starts = (t_start > breakaway) & (f_start > 0) & live
-    back = ~starts & (f_back < 0) & live
-    ev_d = sc[:, :im] | ~valid[:, :im]
-    has_d = ev_d.any(axis=1)
-    cd = im - 1 - np.argmax(ev_d[:, ::-1], axis=1)
-    ev_u = sc[:, im + 1:] | ~valid[:, im + 2:]
-    has_u = ev_u.any(axis=1)
-    cu = im + 1 + np.argmax(ev_u, axis=1)
-    down = (starts & ~up) | (back & up)
-    ok_d = down & has_d & sc[rows, cd]
-    ok_u = ~down & (starts | back) & has_u & sc[rows, np.minimum(cu, sc.shape[1] - 1)]
-    cell = np.where(down, cd, cu)
-    found = ok_d | ok_u
+    g = settling_cells(ev, load_torque, n, grid, safe_speed, breakaway)
+    i0, jumps, im, Ia, w, f, valid, sc = (g[k] for k in ("i0", "jumps", "im", "Ia", "w", "f", "valid", "sc"))
+    t_start, live, starts, back, cell, found = (g[k] for k in ("t_start", "live", "starts", "back", "cell", "found"))
     if tracked:
         lo = jumps[0] + 1
         fwd = valid & (w > 0)
