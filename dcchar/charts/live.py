@@ -324,7 +324,7 @@ class LiveChart:
         if any(v is not None for v in new_lims):
             self.stats["rescale"] += 1
             full = True
-        xlim, ylim = ax.get_xlim(), ax.get_ylim()
+        ylim = ax.get_ylim()
 
         # runaway band on speed axes
         safe = target["safe"] if spec.y_quantity == "speed" else None

@@ -28,7 +28,7 @@ import textwrap
 from ..models.cautions import DEFERENCE
 from ..models.units import display_units
 from .atomic import atomic_write_text
-from .tables import format_value, table_csv, table_html, table_markdown
+from .tables import table_csv, table_html, table_markdown
 
 __all__ = ["ChoiceSection", "cell_table", "grid_table", "choice_files", "choice_markdown", "choice_html",
            "bands_table", "shares_table", "CHOICE_FIGURES"]

@@ -14,9 +14,10 @@ import traceback
 
 from ..files.tables import display_table, format_value
 from ..models.cautions import DEFERENCE
-from ..studies.comparison import TABLE_COLUMNS
+from ..studies.comparison import TABLE_COLUMNS, ControlSettings
 
-__all__ = ["results_html", "cautions_html", "status_html", "error_html", "swatch_html", "RESULT_COLUMNS"]
+__all__ = ["results_html", "cautions_html", "status_html", "error_html", "swatch_html", "RESULT_COLUMNS",
+           "panel_inputs"]
 
 #: Rows of the on-screen table (the connection names head the columns).
 RESULT_COLUMNS = tuple(k for k in TABLE_COLUMNS if k != "connection")
@@ -137,3 +138,17 @@ def error_html(what: str, exc: BaseException) -> str:
     return (f'<div class="kit-error" style="font-size:12px;color:#9b1c0c"><b>{html.escape(what)}:</b> '
             f'{html.escape(type(exc).__name__)}: <span class="kit-error-message">{html.escape(str(exc))}</span>'
             f'<details><summary>traceback</summary><pre style="font-size:10px">{html.escape(tb)}</pre></details></div>')
+
+
+def panel_inputs(machines=None, load=None, settings=None):
+    """(machines dict, load, settings) for a panel, with the demo family, the editor's default
+    load and default settings where none is given."""
+    if machines is None:
+        from ..studies.demo import demo_family
+
+        machines = demo_family()
+    if load is None:
+        from .load_editor import LoadEditor
+
+        load = LoadEditor(None).load
+    return dict(machines), load, settings if settings is not None else ControlSettings()

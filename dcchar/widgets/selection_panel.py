@@ -21,11 +21,10 @@ import ipywidgets as w
 
 from ..errors import ParameterError
 from ..models.units import RPM
-from ..studies.comparison import ControlSettings
 from ..studies.selection import LOAD_KINDS, SelectionSettings, default_requirements, selection_matrix
 from ..studies.selection.matrix import VERDICTS
 from ..studies.selection.requirements import format_value
-from .panels import error_html, status_html
+from .panels import error_html, panel_inputs, status_html
 
 __all__ = ["SelectionPanel", "DISPLAY_UNITS", "figure_png"]
 
@@ -105,17 +104,7 @@ class SelectionPanel:
 
     def __init__(self, machines=None, load=None, settings=None, *, kind=None, starter_multiple=2.0,
                  samples: int = 2000, seed: int = 0):
-        if machines is None:
-            from ..studies.demo import demo_family
-
-            machines = demo_family()
-        if load is None:
-            from .load_editor import LoadEditor
-
-            load = LoadEditor(None).load
-        self.machines = dict(machines)
-        self.load = load
-        self.settings = settings if settings is not None else ControlSettings()
+        self.machines, self.load, self.settings = panel_inputs(machines, load, settings)
         self.starter_multiple = starter_multiple
         self.seed = seed
         self.matrix = None

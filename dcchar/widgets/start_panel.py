@@ -22,8 +22,8 @@ from pathlib import Path
 import ipywidgets as w
 
 from ..errors import ParameterError
-from ..studies.comparison import ControlSettings, apply_settings
-from .panels import error_html, status_html
+from ..studies.comparison import apply_settings
+from .panels import error_html, panel_inputs, status_html
 from .selection_panel import figure_png
 
 __all__ = ["StartPanel"]
@@ -78,17 +78,7 @@ class StartPanel:
 
     def __init__(self, machines=None, load=None, settings=None, *, sections: int = 4, limit: float = 2.0,
                  run_time: float = 20.0, rest_time: float = 40.0, export_folder: str = "dcchar-export"):
-        if machines is None:
-            from ..studies.demo import demo_family
-
-            machines = demo_family()
-        if load is None:
-            from .load_editor import LoadEditor
-
-            load = LoadEditor(None).load
-        self.machines = dict(machines)
-        self.load = load
-        self.settings = settings if settings is not None else ControlSettings()
+        self.machines, self.load, self.settings = panel_inputs(machines, load, settings)
         self.transients, self.duties, self.starters = {}, {}, {}
         self.figure = self.chart = None
         self.last_error = None
