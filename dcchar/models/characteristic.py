@@ -132,7 +132,7 @@ class Characteristic:
     @functools.cached_property
     def no_load(self) -> NoLoadPoint:
         """The no-load point on the motoring branch (see :class:`NoLoadPoint`)."""
-        return _no_load(self.machine, self.voltage)
+        return _per_machine(self.machine, ("no_load", self.voltage), lambda: _no_load(self.machine, self.voltage))
 
     @property
     def no_load_speed(self) -> float:
@@ -159,7 +159,8 @@ class Characteristic:
     @functools.cached_property
     def runaway(self) -> RunawayInfo | None:
         """Where the machine passes its safe speed on light load, or None if it never does."""
-        return _runaway(self.machine, self.voltage, self.safe_speed, self.no_load)
+        return _per_machine(self.machine, ("runaway", self.voltage, self.safe_speed),
+                            lambda: _runaway(self.machine, self.voltage, self.safe_speed, self.no_load))
 
     @property
     def runs_away(self) -> bool:
@@ -187,6 +188,19 @@ class Characteristic:
     def __repr__(self):
         return (f"Characteristic({self.machine.label}, V={self.voltage:g} V, "
                 f"{self.armature_current.size} points)")
+
+
+def _per_machine(machine, key, compute):
+    """A figure of an immutable machine, computed once per machine object and key (machines are
+    frozen, so the answer cannot change; many sweeps of one machine ask the same question)."""
+    cache = machine.__dict__.setdefault("_figure_cache", {})
+    try:
+        return cache[key]
+    except KeyError:
+        if len(cache) > 64:  # a slider moving the voltage: keep the cache small
+            cache.clear()
+        value = cache[key] = compute()
+        return value
 
 
 def _no_load(machine, voltage) -> NoLoadPoint:
