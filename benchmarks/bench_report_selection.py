@@ -12,25 +12,19 @@ from __future__ import annotations
 
 import argparse
 import shutil
-import statistics
 import tempfile
-import time
 from pathlib import Path
+
+from bench_report import HOIST
+from bench_report import timed as _timed
 
 from dcchar.files.report import write_report
 from dcchar.files.scenario import load_scenario
 
-HOIST = Path(__file__).resolve().parents[1] / "examples" / "hoist.toml"
-
 
 def timed(fn, repeats):
-    fn()  # warm: lambdified kernels, font cache
-    times = []
-    for _ in range(repeats):
-        t0 = time.perf_counter()
-        fn()
-        times.append(time.perf_counter() - t0)
-    return statistics.median(times)
+    """Median time of ``fn`` over ``repeats`` runs after one warm run. [s]"""
+    return _timed(fn, repeats)[0]
 
 
 def main(argv=None):
