@@ -43,6 +43,7 @@ from ..errors import ScenarioError
 from ..models.cautions import DEFERENCE, GENERAL_CAUTIONS
 from ..models.units import display_units
 from ..models.validation import choice
+from ..studies.comparison import working_currents
 from .atomic import atomic_write_text
 from .tables import display_table, format_value, table_csv, table_html, table_markdown, write_table_csv
 
@@ -161,27 +162,14 @@ class _Quiet:
 
 
 def report_curves(comparison, points: int = 300) -> list:
-    """The characteristics drawn and tabulated by the report, one per candidate.
-
-    Each sweeps the armature current from zero (or the lowest operating point's current, when
-    that is negative) up to 2.5 x the rated current or the standstill current, whichever is
-    lower, and on past the highest operating point's current by a quarter (so a point on the
-    branch where the load drives the rotor backward shows on its curve). Without a rating the
-    sweep ends at the standstill current. [A]
+    """The characteristics drawn and tabulated by the report, one per candidate: the working range
+    up to 2.5 x the rated current, widened to every operating point, those beyond standstill
+    included (see :func:`dcchar.studies.comparison.working_currents`). [A]
     """
-    import numpy as np
+    return [c.machine.characteristic(c.voltage, working_currents(c, points, rated_multiple=2.5,
+                                                                 beyond_standstill=True))
+            for c in comparison.candidates.values()]
 
-    out = []
-    for cand in comparison.candidates.values():
-        m, V = cand.machine, cand.voltage
-        i_lr = m.locked_rotor_current(V)
-        top = min(2.5 * m.rating.current, i_lr) if m.rating is not None else i_lr
-        ia = [p.armature_current for p in cand.operating.points]
-        if ia:
-            top = max(top, 1.25 * max(ia))
-        low = min(0.0, 1.25 * min(ia)) if ia else 0.0
-        out.append(m.characteristic(V, np.linspace(low, top, int(points))))
-    return out
 
 def _text_of(artist) -> str:
     get = getattr(artist, "get_text", None)

@@ -28,7 +28,8 @@ from ..models.validation import in_range, nonnegative, positive, real
 from .cautions import Thresholds, cautions_for
 from .operating import operating_points, speed_regulation, starting
 
-__all__ = ["ControlSettings", "Candidate", "Comparison", "compare", "apply_settings", "TABLE_COLUMNS"]
+__all__ = ["ControlSettings", "Candidate", "Comparison", "compare", "apply_settings", "working_currents",
+           "TABLE_COLUMNS"]
 
 
 @dataclass(frozen=True)
@@ -198,6 +199,30 @@ class Comparison:
                 cells.append(f"<td>{v:.4g}</td>" if isinstance(v, float) else f"<td>{v}</td>")
             body += "<tr>" + "".join(cells) + "</tr>"
         return f"<table><tr>{head}</tr>{body}</table><p>speeds in r/min</p>"
+
+
+def working_currents(candidate, points: int = 300, *, rated_multiple: float = 2.0,
+                     beyond_standstill: bool = False):
+    """Armature currents [A] of the working range of one candidate, for curves people read.
+
+    From 0 (or 1.25 times the most negative operating current, for generating points) up to
+    ``rated_multiple`` times the rated current (half the standstill current without a rating),
+    capped at the standstill current and widened to 1.25 times the largest operating current.
+    Operating currents beyond standstill (a load driving the rotor backward) widen the range only
+    when ``beyond_standstill`` is set. The study's own sweep runs to standstill, where the
+    torques are many times rated and crowd the working region into a corner of a chart.
+    """
+    import numpy as np
+
+    m = candidate.machine
+    i0 = m.locked_rotor_current(candidate.voltage)
+    cur = [p.armature_current for p in candidate.operating.points]
+    hi = rated_multiple * m.rating.current if m.rating is not None else 0.5 * i0
+    if i0 > 0:
+        hi = min(hi, i0)
+    hi = max([hi] + [1.25 * i for i in cur if i > 0 and (beyond_standstill or i <= i0)])
+    lo = min([0.0] + [1.25 * i for i in cur if i < 0])
+    return np.linspace(lo, hi, int(points))
 
 
 # load-dependent codes that already say what a machine-only caution says

@@ -38,7 +38,7 @@ import ipywidgets as w
 from ..charts.live import LiveChart
 from ..charts.style import styles_for
 from ..errors import ParameterError
-from ..studies.comparison import ControlSettings, compare
+from ..studies.comparison import ControlSettings, compare, working_currents
 from .controls import Coalescer, from_front_end, labelled_slider
 from .load_editor import LoadEditor
 from .panels import cautions_html, error_html, results_html, status_html, swatch_html
@@ -611,27 +611,9 @@ class Comparer:
     # ------------------------------------------------------------------ chart data
     @staticmethod
     def chart_currents(candidate, points: int = 300):
-        """Armature currents [A] the chart sweeps for one candidate: the working range.
-
-        From 0 (or 1.25 times the most negative current of a stable operating point, for
-        generating points) up to twice the rated current (half the standstill current without a
-        rating), widened to 1.25 times any motoring operating current and never beyond the
-        standstill current. The study
-        itself sweeps to standstill, where the torques are many times rated and would crowd the
-        working region into a corner of the chart.
-        """
-        import numpy as np
-
-        m = candidate.machine
-        i0 = float(candidate.characteristic.locked_rotor_current)
-        cur = [p.armature_current for p in candidate.operating.points]
-        hi = 2.0 * m.rating.current if m.rating is not None else 0.5 * i0
-        hi = max([hi] + [1.25 * i for i in cur if 0 < i <= i0])
-        if math.isfinite(i0) and i0 > 0:
-            hi = min(hi, i0)
-        lo = min([0.0] + [1.25 * p.armature_current for p in candidate.operating.points
-                           if p.armature_current < 0 and (p.stable or p is candidate.point)])
-        return np.linspace(lo, hi, points)
+        """Armature currents [A] the chart sweeps for one candidate: the working range, up to twice
+        the rated current (see :func:`dcchar.studies.comparison.working_currents`)."""
+        return working_currents(candidate, points)
 
     def chart_data(self, comparison):
         """(characteristics, operating results, hidden) as drawn: each candidate's characteristic
