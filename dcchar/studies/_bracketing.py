@@ -191,20 +191,26 @@ def _hidden_pairs(ev, load, x, f, valid, jumps, i0, ws, depth=3, n_local=33):
         fc, dl, dr = f[c], d[c - 1], d[c]
         if ((dl < 0 < dr and fc > 0) or (dl > 0 > dr and fc < 0)) and abs(fc) < 2.0 * max(abs(dl), abs(dr)):
             cand.append(c)
+    return _refine(ev, load, [(x[c - 1], x[c + 1]) for c in cand], i0, ws, n_local, depth,
+                   lambda xs, w, f, v: _hidden_pairs(ev, load, xs, f, v, (), i0, ws, depth - 1, n_local))
+
+
+def _refine(ev, load, spans, i0, ws, n_local, depth, deeper):
+    """Nodes, f values and validity on ``n_local`` points inside each (a, b) of ``spans`` (ends
+    left out), plus what ``deeper(xs, w, f, valid)`` adds while ``depth`` > 1."""
     out_x, out_f, out_v = [], [], []
-    for c in cand:
-        xs = np.linspace(x[c - 1], x[c + 1], n_local)
+    for a, b in spans:
+        xs = np.linspace(a, b, n_local)[1:-1]
         w, t = ev.speed_torque(xs * i0)
         fl = t - np.asarray(load.torque(w), dtype=float)
         vl = np.isfinite(fl) & np.isfinite(w) & (np.abs(w) <= ws)
         out_x.append(xs), out_f.append(fl), out_v.append(vl)
         if depth > 1:
-            ex, ef, evv = _hidden_pairs(ev, load, xs, fl, vl, (), i0, ws, depth - 1, n_local)
+            ex, ef, evv = deeper(xs, w, fl, vl)
             out_x.append(ex), out_f.append(ef), out_v.append(evv)
     if not out_x:
         return np.empty(0), np.empty(0), np.empty(0, bool)
     return np.concatenate(out_x), np.concatenate(out_f), np.concatenate(out_v)
-
 
 
 def _edge_nodes(ev, load, x, w, valid, jumps, i0, ws, depth=2, n_local=33):
@@ -219,21 +225,8 @@ def _edge_nodes(ev, load, x, w, valid, jumps, i0, ws, depth=2, n_local=33):
     blind = (valid[:-1] & ~fin[1:]) | (~fin[:-1] & valid[1:])
     cells = np.flatnonzero(flips | blind)
     skip = set(jumps)
-    out_x, out_f, out_v = [], [], []
-    for c in cells:
-        if c in skip:
-            continue
-        xs = np.linspace(x[c], x[c + 1], n_local)[1:-1]
-        wl, tl = ev.speed_torque(xs * i0)
-        fl = tl - np.asarray(load.torque(wl), dtype=float)
-        vl = np.isfinite(fl) & np.isfinite(wl) & (np.abs(wl) <= ws)
-        out_x.append(xs), out_f.append(fl), out_v.append(vl)
-        if depth > 1:
-            ex, ef, evv = _edge_nodes(ev, load, xs, wl, vl, (), i0, ws, depth - 1, n_local)
-            out_x.append(ex), out_f.append(ef), out_v.append(evv)
-    if not out_x:
-        return np.empty(0), np.empty(0), np.empty(0, bool)
-    return np.concatenate(out_x), np.concatenate(out_f), np.concatenate(out_v)
+    return _refine(ev, load, [(x[c], x[c + 1]) for c in cells if c not in skip], i0, ws, n_local, depth,
+                   lambda xs, w, f, v: _edge_nodes(ev, load, xs, w, v, (), i0, ws, depth - 1, n_local))
 
 
 def _intervals(currents, mask):
