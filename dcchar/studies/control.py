@@ -172,6 +172,17 @@ def _index(conn, name):
     return CIRCUIT_PARAMETERS[conn].index(name)
 
 
+def _state_at_roots(sub, r, i0):
+    """Full state at armature currents ``r`` of evaluator rows ``sub``, and the motor's slope
+    dT/dw there (central difference in I_a, step 1e-6 of the standstill current ``i0``)."""
+    h = 1e-6 * i0
+    with np.errstate(all="ignore"):
+        st = sub.full_state(r)
+        wp, tp = sub.speed_torque(r + h)
+        wm, tm = sub.speed_torque(r - h)
+        return st, (tp - tm) / (wp - wm)
+
+
 def _anderson_bjorck(fun, a, b, fa, fb, xtol, ftol, maxiter=100):
     """Vectorized Anderson-Bjorck regula falsi on brackets [a, b] with fa*fb < 0 (elementwise)."""
     for it in range(maxiter):
@@ -271,12 +282,7 @@ def control_sweep(machine, load, parameter: str, values, *, voltage=None, grid: 
             r = res.x
         else:
             r, _, _ = _anderson_bjorck(fun, a, b, fa, fb, 1e-13 * i0[sel, 0], 1e-13 * scale)
-        h = 1e-6 * i0[sel, 0]
-        with np.errstate(all="ignore"):
-            st = sub.full_state(r)
-            wp, tp = sub.speed_torque(r + h)
-            wm, tm = sub.speed_torque(r - h)
-            motor_slope = (tp - tm) / (wp - wm)
+        st, motor_slope = _state_at_roots(sub, r, i0[sel, 0])
         ws_ = np.asarray(st["speed"], dtype=float)
         p_in, p_out = st["input_power"], st["output_power"]
         out["speed"][sel] = ws_

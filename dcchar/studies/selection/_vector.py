@@ -15,7 +15,7 @@ from __future__ import annotations
 import numpy as np
 
 from .._bracketing import _Evaluator, settling_cells
-from ..control import _anderson_bjorck
+from ..control import _anderson_bjorck, _state_at_roots
 
 __all__ = []
 
@@ -121,12 +121,8 @@ def settle(ev, load_torque, breakaway, safe_speed, grid: int = 112, tracked: boo
 
         scale = np.maximum(np.abs(t_start[sel]), 1e-12)
         r, _, _ = _anderson_bjorck(fun, a, b, fa, fb, 1e-13 * i0[sel, 0], 1e-13 * scale)
-        h = 1e-6 * i0[sel, 0]
+        st, slope = _state_at_roots(sub, r, i0[sel, 0])
         with np.errstate(all="ignore"):
-            st = sub.full_state(r)
-            wp, tp = sub.speed_torque(r + h)
-            wm, tm = sub.speed_torque(r - h)
-            slope = (tp - tm) / (wp - wm)
             lslope = (np.asarray(load_torque(st["speed"] + 1e-6), float)
                       - np.asarray(load_torque(st["speed"] - 1e-6), float)) / 2e-6
         p_in, p_out = st["input_power"], st["output_power"]
