@@ -371,3 +371,15 @@ def test_float_fast_path_equals_array_path(w, ratio, eff):
         t_arr, s_arr = load.torque(np.array([w])), load.slope(np.array([w]))
         assert t_fast == pytest.approx(float(t_arr[0]), rel=1e-14, abs=1e-14)
         assert s_fast == pytest.approx(float(s_arr[0]), rel=1e-14, abs=1e-14)
+
+
+def test_lowering_hoist_with_reversed_armature():
+    """Lowering with the armature reversed: in the motor's frame the gravity torque aids the
+    motion, referred with the gear efficiency multiplying (the load drives), as in Dubey,
+    Fundamentals of Electrical Drives, 2nd ed., ch. 2 (active loads, power flow through gears)."""
+    from dcchar.models.loads import LoweringHoist
+
+    h = Hoist(load_mass=1500.0, hook_mass=80.0, drum_diameter=0.4, reeving=2, gearing=Gearing(20.0, 0.92))
+    low = LoweringHoist.of(h)
+    assert_allclose(low.torque(np.array([50.0])), -h.drum_torque * 0.92 / 20.0, rtol=1e-12)
+    assert low.kind == "hoist" and low.inertia == h.inertia

@@ -38,7 +38,7 @@ from dcchar.studies.demo import DEMO_RATING, demo_armature, demo_family, demo_ma
 from dcchar.studies.rating import DEFAULT_CONNECTIONS, equal_rating_family  # noqa: E402
 from dcchar.widgets import Comparer  # noqa: E402
 from dcchar.widgets.controls import Coalescer, from_front_end, nice_step  # noqa: E402
-from dcchar.widgets.load_editor import LoweringHoist  # noqa: E402
+from dcchar.models.loads import LoweringHoist  # noqa: E402
 from dcchar.widgets.panels import RESULT_COLUMNS  # noqa: E402
 
 # the editor's default load: an invented 1.5 t hoist (demo data)

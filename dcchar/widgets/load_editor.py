@@ -13,18 +13,16 @@ import dataclasses
 import html
 import os
 import tempfile
-from dataclasses import dataclass
-from typing import ClassVar
 
 import ipywidgets as w
 
 from ..errors import DcCharError
 from ..models import units as U
-from ..models.loads import (ConstantPower, ConstantTorque, Conveyor, Fan, FormulaLoad, Gearing, Hoist, Pump,
-                            TableLoad)
+from ..models.loads import (ConstantPower, ConstantTorque, Conveyor, Fan, FormulaLoad, Gearing, Hoist,
+                            LoweringHoist, Pump, TableLoad)
 from .controls import from_front_end
 
-__all__ = ["LoadEditor", "LOAD_KINDS", "LoweringHoist"]
+__all__ = ["LoadEditor", "LOAD_KINDS"]
 
 #: Kinds of load the editor builds: key -> label in the menu.
 LOAD_KINDS = {
@@ -40,32 +38,6 @@ LOAD_KINDS = {
 }
 
 _WIDTH = "150px"
-
-
-@dataclass(frozen=True)
-class LoweringHoist(ConstantTorque):
-    """A hoist lowering with its motor's armature reversed, in the motor's own frame.
-
-    With the armature reversed the motor turns its own positive way while the hook goes down,
-    and gravity aids the motion: the load is the hoist's gravity torque with its sign changed,
-    referred through the same gearing (``T_d*eff/ratio`` while the load drives, ``T_d/ratio``
-    at rest), exactly :class:`ConstantTorque` with ``active=True`` and ``load_torque = -T_d``.
-    ``kind`` stays ``"hoist"`` so that the hoist cautions (holding brake, overhauling) apply.
-    """
-
-    hoist: Hoist | None = None
-    kind: ClassVar[str] = "hoist"
-
-    @classmethod
-    def of(cls, hoist: Hoist) -> "LoweringHoist":
-        return cls(load_torque=-hoist.drum_torque, gearing=hoist.gearing, active=True, hoist=hoist)
-
-    @property
-    def inertia(self) -> float:
-        return self.hoist.inertia
-
-    def describe(self):
-        return "lowering, armature reversed: " + self.hoist.describe()
 
 
 # field, label, quantity (for display units)

@@ -27,13 +27,13 @@ References
    p. 16.
 """
 
-from .analytic import (Breakaway, ConstantPower, ConstantTorque, Conveyor, Fan, Hoist, Linear, Pump,
-                       Quadratic, affinity_flow, affinity_head, affinity_power)
+from .analytic import (Breakaway, ConstantPower, ConstantTorque, Conveyor, Fan, Hoist, Linear, LoweringHoist,
+                       Pump, Quadratic, affinity_flow, affinity_head, affinity_power)
 from .base import STANDARD_GRAVITY, Gearing, Load, SumLoad
 from .supplied import FormulaLoad, TableLoad
 
 __all__ = [
-    "Gearing", "Load", "ConstantTorque", "Conveyor", "Hoist", "Quadratic", "Fan", "Pump",
+    "Gearing", "Load", "ConstantTorque", "Conveyor", "Hoist", "LoweringHoist", "Quadratic", "Fan", "Pump",
     "Linear", "ConstantPower", "Breakaway", "SumLoad", "TableLoad", "FormulaLoad",
     "affinity_flow", "affinity_head", "affinity_power", "STANDARD_GRAVITY",
 ]

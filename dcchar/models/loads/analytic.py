@@ -18,7 +18,7 @@ from ..validation import in_range, nonnegative, positive, real
 from .base import STANDARD_GRAVITY, Gearing, Load, _check_gear, _odd, _speed_array
 
 __all__ = [
-    "ConstantTorque", "Conveyor", "Hoist", "Quadratic", "Fan", "Pump", "Linear", "ConstantPower",
+    "ConstantTorque", "Conveyor", "Hoist", "LoweringHoist", "Quadratic", "Fan", "Pump", "Linear", "ConstantPower",
     "Breakaway", "affinity_flow", "affinity_head", "affinity_power",
 ]
 
@@ -254,6 +254,32 @@ class Hoist(Load):
     def describe(self):
         return self._geared(f"hoist: {self.total_mass:g} kg on {self.reeving:g} parts of line, "
                             f"{self.drum_diameter:g} m drum (raising positive)")
+
+
+@dataclass(frozen=True)
+class LoweringHoist(ConstantTorque):
+    """A hoist lowering with its motor's armature reversed, in the motor's own frame.
+
+    With the armature reversed the motor turns its own positive way while the hook goes down,
+    and gravity aids the motion: the load is the hoist's gravity torque with its sign changed,
+    referred through the same gearing (``T_d*eff/ratio`` while the load drives, ``T_d/ratio``
+    at rest), exactly :class:`ConstantTorque` with ``active=True`` and ``load_torque = -T_d``.
+    ``kind`` stays ``"hoist"`` so that the hoist cautions (holding brake, overhauling) apply.
+    """
+
+    hoist: Hoist | None = None
+    kind: ClassVar[str] = "hoist"
+
+    @classmethod
+    def of(cls, hoist: Hoist) -> "LoweringHoist":
+        return cls(load_torque=-hoist.drum_torque, gearing=hoist.gearing, active=True, hoist=hoist)
+
+    @property
+    def inertia(self) -> float:
+        return self.hoist.inertia
+
+    def describe(self):
+        return "lowering, armature reversed: " + self.hoist.describe()
 
 
 @dataclass(frozen=True)
