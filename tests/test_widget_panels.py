@@ -355,3 +355,41 @@ def test_start_panel_export_and_stale(family, hoist, tmp_path):
     panel.run_button.click()
     assert isinstance(panel.last_error, ParameterError) and "candidate" in panel.error_line.value
     assert panel.transients is good and bytes(panel.image.value).startswith(PNG)
+
+
+def test_browser_drag_defers_the_panels_until_quiet():
+    """A slider change from the browser redraws chart and table at once and brings the panels up
+    to date only after the quiet time; a change from code updates them at once."""
+    import asyncio
+    import concurrent.futures
+
+    from dcchar.widgets import Comparer
+
+    comparer = Comparer(title="panels")
+    calls = []
+
+    import ipywidgets
+
+    class Probe:
+        widget = ipywidgets.HTML()
+
+        def update(self, machines, load, settings):
+            calls.append(settings.voltage)
+
+    comparer.attach(Probe(), "probe")
+    comparer.PANEL_DELAY = 0.05
+
+    before = len(calls)  # attaching brings the panel up to date once
+
+    async def drag():
+        comparer._from_front = True
+        comparer._recompute()
+        immediate = len(calls)
+        await asyncio.sleep(0.2)
+        return immediate
+
+    with concurrent.futures.ThreadPoolExecutor(1) as pool:
+        immediate = pool.submit(asyncio.run, drag()).result()
+    assert immediate == before and len(calls) == before + 1
+    comparer.controls["voltage"].value = 200.0  # from code: at once
+    assert calls[-1] == 200.0

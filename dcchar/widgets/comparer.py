@@ -39,7 +39,7 @@ from ..charts.live import LiveChart
 from ..charts.style import styles_for
 from ..errors import ParameterError
 from ..studies.comparison import ControlSettings, compare, working_currents
-from .controls import Coalescer, from_front_end, labelled_slider
+from .controls import Coalescer, _running_loop, from_front_end, labelled_slider
 from .load_editor import LoadEditor
 from .panels import cautions_html, error_html, results_html, status_html, swatch_html
 
@@ -168,6 +168,8 @@ class Comparer:
         self._held = False
         self._chart_signature = None
         self._coalescer = Coalescer(self._recompute, delay=debounce, report=self._report)
+        self._from_front = False  # the change being processed came from the browser
+        self._panel_handle = None  # a scheduled panel update (trailing, after a drag settles)
 
         first = next(iter(self._base.values()))
         rated = next((m.rating for m in self._base.values() if m.rating is not None), None)
@@ -484,7 +486,25 @@ class Comparer:
                         "start-up and duty")
         return self.panels
 
+    #: Quiet time after the last browser change before the panels are brought up to date. [s]
+    PANEL_DELAY = 0.3
+
     def _update_panels(self, machines, load, settings):
+        """Bring the hosted panels up to date: at once for a change made from code, and for a
+        change from the browser once the slider has been quiet for :attr:`PANEL_DELAY`, so that a
+        drag redraws the chart and table without waiting for the panels' own studies."""
+        if self._panel_handle is not None:
+            self._panel_handle.cancel()
+            self._panel_handle = None
+        from_front, self._from_front = self._from_front, False
+        loop = _running_loop() if (from_front and self.panels) else None
+        if loop is None:
+            self._run_panels(machines, load, settings)
+        else:
+            self._panel_handle = loop.call_later(self.PANEL_DELAY, self._run_panels, machines, load, settings)
+
+    def _run_panels(self, machines, load, settings):
+        self._panel_handle = None
         for title, panel in self.panels.items():
             if hasattr(panel, "update"):
                 t0 = time.perf_counter()
@@ -530,7 +550,8 @@ class Comparer:
             self.controls["diverter"].disabled = not change["new"] or self.controls["diverter_on"].disabled
         if self._held:
             return
-        self._coalescer.request(defer=from_front_end(change))
+        self._from_front = from_front_end(change)
+        self._coalescer.request(defer=self._from_front)
 
     def _on_view(self, change):
         self.chart.set_view(change["new"])
