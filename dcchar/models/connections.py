@@ -264,24 +264,58 @@ class Machine:
                    supply_current=full(IL), kphi=full(kphi))
         return out
 
-    def scalar_state(self, voltage: float, current: float) -> tuple[float, float]:
-        """(speed [rad/s], shaft torque [N*m]) at one armature current, with pure-Python kernels.
+    def scalar_functions(self, voltage: float):
+        """Pure-Python ``speed_torque(I_a) -> (speed, shaft torque)`` and ``full(I_a) -> dict`` at
+        supply ``voltage`` [V], with the circuit bound once (built per machine and voltage, cached).
 
         Used inside root finders, where a numpy call per iteration would cost ten times more.
         """
+        cache = self.__dict__.setdefault("_scalar_cache", {})
+        V = float(voltage)
+        if V not in cache:
+            if len(cache) > 64:
+                cache.clear()
+            cache[V] = self._scalar_functions(V)
+        return cache[V]
+
+    def _scalar_functions(self, V):
         conn = self.connection
         circuit = self.circuit_parameters()
+        loss = self._loss_parameters()
+        out_k = symbolic.output_kernel(conn, True)
+        kphi_of = self._kphi
         if conn == "permanent_magnet":
-            F = 0.0
+            def excite(i):
+                return 0.0, 0.0, 0.0, i
         else:
-            Far = float(self.armature_reaction.excitation(current)) if not isinstance(
-                self.armature_reaction, NoArmatureReaction) else 0.0
-            F = symbolic.excitation_kernel(conn, True)(current, voltage, *circuit, Far)[0]
-        kphi = float(self._kphi(F, current))
-        if kphi == 0.0:
-            return math.inf, 0.0
-        out = symbolic.output_kernel(conn, True)(current, kphi, voltage, *circuit, *self._loss_parameters())
-        return out[1], out[3]
+            ex_k = symbolic.excitation_kernel(conn, True)
+            ar = self.armature_reaction
+            none = isinstance(ar, NoArmatureReaction)
+
+            def excite(i):
+                return ex_k(i, V, *circuit, 0.0 if none else float(ar.excitation(i)))
+
+        def speed_torque(i):
+            F = excite(i)[0]
+            k = float(kphi_of(F, i))
+            if k == 0.0:
+                return math.inf, 0.0
+            o = out_k(i, k, V, *circuit, *loss)
+            return o[1], o[3]
+
+        def full(i):
+            F, If, Is, IL = excite(i)
+            k = float(kphi_of(F, i))
+            o = dict(zip(symbolic.OUTPUTS, out_k(i, k, V, *circuit, *loss)))
+            o.update(excitation=F, field_current=If, series_field_current=Is, supply_current=IL, kphi=k)
+            return o
+
+        return speed_torque, full
+
+    def scalar_state(self, voltage: float, current: float) -> tuple[float, float]:
+        """(speed [rad/s], shaft torque [N*m]) at one armature current, with pure-Python kernels
+        (see :meth:`scalar_functions`)."""
+        return self.scalar_functions(voltage)[0](current)
 
     def _loss_parameters(self) -> tuple:
         return (*self.rotational_loss.kernel_parameters(), self.stray_load)

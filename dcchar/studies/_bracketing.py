@@ -9,12 +9,10 @@ two discontinuities, and the search for roots that hide between grid nodes.
 from __future__ import annotations
 
 import functools
-import math
 
 import numpy as np
 
 from ..models import symbolic
-from ..models.magnetics import NoArmatureReaction
 
 _TINY = 1e-9  # offset of grid nodes from the two discontinuities (I_a = 0 and standstill), x I_0
 
@@ -105,44 +103,9 @@ class _Evaluator:
 
 
 def _scalar_functions(machine, voltage, circuit=None):
-    """Pure-Python (speed, shaft torque) and full-state functions of I_a, with the circuit bound once.
-
-    The same computation as :meth:`Machine.scalar_state` (the tests hold them equal), without
-    recomputing the hot resistances on every call of a root finder.
-    """
-    conn = machine.connection
-    circuit = machine.circuit_parameters() if circuit is None else circuit
-    loss = (*machine.rotational_loss.kernel_parameters(), machine.stray_load)
-    out_k = symbolic.output_kernel(conn, True)
-    kphi_of = machine._kphi
-    V = float(voltage)
-    if conn == "permanent_magnet":
-        def excite(i):
-            return 0.0, 0.0, 0.0, i
-    else:
-        ex_k = symbolic.excitation_kernel(conn, True)
-        ar = machine.armature_reaction
-        none = isinstance(ar, NoArmatureReaction)
-
-        def excite(i):
-            return ex_k(i, V, *circuit, 0.0 if none else float(ar.excitation(i)))
-
-    def speed_torque(i):
-        F = excite(i)[0]
-        k = float(kphi_of(F, i))
-        if k == 0.0:
-            return math.inf, 0.0
-        o = out_k(i, k, V, *circuit, *loss)
-        return o[1], o[3]
-
-    def full(i):
-        F, If, Is, IL = excite(i)
-        k = float(kphi_of(F, i))
-        o = dict(zip(symbolic.OUTPUTS, out_k(i, k, V, *circuit, *loss)))
-        o.update(excitation=F, field_current=If, series_field_current=Is, supply_current=IL, kphi=k)
-        return o
-
-    return speed_torque, full
+    """Pure-Python (speed, shaft torque) and full-state functions of I_a: the machine's own
+    :meth:`~dcchar.models.connections.Machine.scalar_functions` (``circuit`` is the machine's)."""
+    return machine.scalar_functions(voltage)
 
 
 @functools.lru_cache(maxsize=64)
