@@ -120,8 +120,7 @@ def cautions_for(machine, load, result, *, thresholds: Thresholds = Thresholds()
                            f"locked-rotor torque {result.locked_rotor_torque:.4g} N*m", "danger"))
     # starting current
     if machine.external_resistance == 0:
-        c = machine.characteristic(result.voltage, [0.0])
-        i_lr = c.locked_rotor_current
+        i_lr = machine.locked_rotor_current(result.voltage)
         ref = rating.current if rating else (abs(p.armature_current) if p is not None else math.nan)
         if ref > 0 and i_lr > th.starting_multiple * ref:
             base = "rated" if rating else "operating"
