@@ -167,7 +167,7 @@ def report_curves(comparison, points: int = 300) -> list:
     included (see :func:`dcchar.studies.comparison.working_currents`). [A]
     """
     return [c.machine.characteristic(c.voltage, working_currents(c, points, rated_multiple=2.5,
-                                                                 beyond_standstill=True))
+                                                                 every_point=True))
             for c in comparison.candidates.values()]
 
 

@@ -202,26 +202,29 @@ class Comparison:
 
 
 def working_currents(candidate, points: int = 300, *, rated_multiple: float = 2.0,
-                     beyond_standstill: bool = False):
+                     every_point: bool = False):
     """Armature currents [A] of the working range of one candidate, for curves people read.
 
-    From 0 (or 1.25 times the most negative operating current, for generating points) up to
-    ``rated_multiple`` times the rated current (half the standstill current without a rating),
-    capped at the standstill current and widened to 1.25 times the largest operating current.
-    Operating currents beyond standstill (a load driving the rotor backward) widen the range only
-    when ``beyond_standstill`` is set. The study's own sweep runs to standstill, where the
-    torques are many times rated and crowd the working region into a corner of a chart.
+    From 0 up to ``rated_multiple`` times the rated current (half the standstill current without
+    a rating), capped at the standstill current, and widened by a quarter past the operating
+    points it shows: by default the motoring points up to standstill and, on the generating
+    side, the stable points and the one the drive settles at; with ``every_point`` all of them
+    (unstable ones and a load driving the rotor backward beyond standstill included). The
+    study's own sweep runs to standstill, where the torques are many times rated and crowd the
+    working region into a corner of a chart.
     """
     import numpy as np
 
     m = candidate.machine
     i0 = m.locked_rotor_current(candidate.voltage)
-    cur = [p.armature_current for p in candidate.operating.points]
+    pts = candidate.operating.points
     hi = rated_multiple * m.rating.current if m.rating is not None else 0.5 * i0
     if i0 > 0:
         hi = min(hi, i0)
-    hi = max([hi] + [1.25 * i for i in cur if i > 0 and (beyond_standstill or i <= i0)])
-    lo = min([0.0] + [1.25 * i for i in cur if i < 0])
+    hi = max([hi] + [1.25 * p.armature_current for p in pts
+                     if p.armature_current > 0 and (every_point or p.armature_current <= i0)])
+    lo = min([0.0] + [1.25 * p.armature_current for p in pts
+                      if p.armature_current < 0 and (every_point or p.stable or p is candidate.point)])
     return np.linspace(lo, hi, int(points))
 
 
