@@ -383,3 +383,22 @@ def test_lowering_hoist_with_reversed_armature():
     low = LoweringHoist.of(h)
     assert_allclose(low.torque(np.array([50.0])), -h.drum_torque * 0.92 / 20.0, rtol=1e-12)
     assert low.kind == "hoist" and low.inertia == h.inertia
+
+
+@pytest.mark.parametrize("ratio", [1.0, 7.5])
+def test_lossless_gearing_refers_by_the_ratio_alone(ratio):
+    # With no gear loss the referred torque is T_l/ratio whichever way power flows (Dubey,
+    # Fundamentals of Electrical Drives, 2nd ed., ch. 2, with efficiency 1).
+    g = Gearing(ratio, 1.0)
+    w = np.array([-3.0, 0.0, 2.0, 5.0])
+    t_l = np.array([4.0, -1.0, -6.0, 2.0])
+    np.testing.assert_allclose(g.refer_torque(t_l, w), t_l / ratio, rtol=1e-15)
+    np.testing.assert_array_equal(g.refer_torque(t_l, w), t_l * g.factor(t_l, w))
+
+
+def test_breakaway_torque_is_computed_once_for_an_immutable_load():
+    load = Quadratic(rated_speed=100.0, rated_torque=50.0, static_torque=4.0, gearing=Gearing(2.0, 0.8))
+    first = load.breakaway_torque
+    assert first == pytest.approx(4.0 / (2.0 * 0.8), rel=1e-15)
+    assert load.breakaway_torque == first and load.__dict__["_breakaway_cache"] == first
+    assert load == Quadratic(rated_speed=100.0, rated_torque=50.0, static_torque=4.0, gearing=Gearing(2.0, 0.8))

@@ -344,3 +344,20 @@ def test_root_next_to_a_flux_reversal_is_found():
     assert c.size == 1
     found = [p.armature_current for p in r.points]
     assert min(abs(x - ia[c[0]]) for x in found) < 1e-3
+
+
+def test_machine_grid_reused_across_loads_gives_the_same_points():
+    # The load-independent grid is kept per machine and voltage; a machine that has seen other
+    # loads must give exactly the points a fresh copy of it gives. (regression, not published)
+    def make():
+        return Compound(armature_resistance=0.2, brush_drop=2.0, magnetization=Froehlich(320.0, 2500.0, 120.0),
+                        field_resistance=150.0, field_turns=2000.0, series_turns=20.0, series_resistance=0.03)
+    used = make()
+    for k in (5.0, 40.0, 80.0):
+        operating_points(used, ConstantTorque(k), 230.0)
+    load = Fan(rated_speed=150.0, rated_torque=60.0)
+    a, b = operating_points(used, load, 230.0), operating_points(make(), load, 230.0)
+    assert [p.speed for p in a.points] == [p.speed for p in b.points]
+    assert (a.reason, a.beyond_safe_speed) == (b.reason, b.beyond_safe_speed)
+    with pytest.raises(ValueError):  # the shared grid cannot be changed through a result
+        a._grid[0][0] = 1.0

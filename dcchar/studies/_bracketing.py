@@ -15,6 +15,9 @@ import numpy as np
 from ..models import symbolic
 
 _TINY = 1e-9  # offset of grid nodes from the two discontinuities (I_a = 0 and standstill), x I_0
+_NONE = (np.empty(0), np.empty(0), np.empty(0, bool))  # no extra nodes
+for _a in _NONE:
+    _a.flags.writeable = False
 
 @functools.lru_cache(maxsize=None)
 def _speed_torque_kernel(connection: str):
@@ -102,6 +105,63 @@ class _Evaluator:
         return np.maximum(V - Vb, 0.0) / (Ra + Rx)
 
 
+class MotorGrid:
+    """The load-independent half of an operating-point search: the machine's speed and shaft
+    torque on the bracketing grid at one supply voltage (arrays read-only, shared between calls).
+
+    Attributes: ``ev`` (:class:`_Evaluator`), ``i0`` standstill current [A], ``x`` grid of
+    I_a/I_0, ``jumps`` its two discontinuity cells, ``Ia`` = x*i0 [A], ``w`` [rad/s], ``t``
+    [N*m], ``finite_w`` (speed defined), ``up`` (the forward side of standstill lies above I_0),
+    ``fwd``/``bwd`` the nodes either side of standstill, ``t_start`` shaft torque as the rotor
+    begins to turn [N*m].
+    """
+
+    __slots__ = ("ev", "i0", "x", "jumps", "Ia", "w", "t", "finite_w", "up", "fwd", "bwd", "t_start", "pole_cells")
+
+    def __init__(self, machine, voltage, grid):
+        self.ev = ev = _Evaluator(machine, voltage)
+        self.i0 = i0 = float(ev.standstill_current())
+        self.x, self.jumps = x, jumps = _unit_grid(grid)
+        if not i0 > 0:
+            return
+        self.Ia = Ia = x * i0
+        with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+            w, t = ev.speed_torque(Ia)
+        # the kernel gives fresh arrays; a constant comes back as a scalar
+        w = w if np.shape(w) == x.shape else np.full(x.shape, w, dtype=float)
+        t = t if np.shape(t) == x.shape else np.full(x.shape, t, dtype=float)
+        self.finite_w = np.isfinite(w)
+        for a in (Ia, w, t, self.finite_w):
+            a.flags.writeable = False
+        self.w, self.t = w, t
+        im = jumps[1]
+        # Normally the speed is positive below I_0; where the flux has reversed at standstill (a
+        # differential compound) the positive-speed side is above it.
+        self.up = up = not w[im] > 0
+        self.fwd, self.bwd = (im + 1, im) if up else (im, im + 1)
+        self.t_start = float(t[self.fwd])
+        # where :func:`_edge_nodes` may look: cells across which the speed changes sign (other than
+        # at standstill); None where the speed is undefined at some node (it looks everywhere)
+        fin = self.finite_w
+        flips = (np.signbit(w[:-1]) != np.signbit(w[1:])) & fin[:-1] & fin[1:]
+        for j in jumps:
+            flips[j] = False
+        self.pole_cells = np.flatnonzero(flips).tolist() if fin.all() else None
+
+
+def motor_grid(machine, voltage: float, grid: int) -> MotorGrid:
+    """:class:`MotorGrid` of ``machine`` at ``voltage`` [V] on ``grid`` nodes, cached per machine
+    (a machine is immutable; a new load on the same machine and supply reuses it)."""
+    cache = machine.__dict__.setdefault("_motor_grid_cache", {})
+    key = (voltage, grid)
+    g = cache.get(key)
+    if g is None:
+        if len(cache) > 64:
+            cache.clear()
+        g = cache[key] = MotorGrid(machine, voltage, grid)
+    return g
+
+
 def _scalar_functions(machine, voltage, circuit=None):
     """Pure-Python (speed, shaft torque) and full-state functions of I_a: the machine's own
     :meth:`~dcchar.models.connections.Machine.scalar_functions` (``circuit`` is the machine's)."""
@@ -136,14 +196,29 @@ def _sign_change_cells(f, finite, valid, jumps):
     across a discontinuity."""
     ok = (finite[..., :-1] & finite[..., 1:] & (valid[..., :-1] | valid[..., 1:])
           & (np.sign(f[..., :-1]) * np.sign(f[..., 1:]) < 0))
-    ok[..., list(jumps)] = False
+    for j in jumps:
+        ok[..., j] = False
     return ok
 
 
 
+def _extra_nodes(mg, load, f, valid, ws):
+    """Nodes, f values and validity to add to the grid of ``mg`` (:class:`MotorGrid`) where a root
+    may hide between nodes: :func:`_hidden_pairs` and :func:`_edge_nodes`."""
+    args = (mg.ev, load, mg.x)
+    hx, hf, hv = _hidden_pairs(*args, f, valid, mg.jumps, mg.i0, ws)
+    cells = mg.pole_cells
+    if cells is not None and not any(valid[c] or valid[c + 1] for c in cells):
+        return hx, hf, hv  # no cell for _edge_nodes to refine
+    ex, ef, ev = _edge_nodes(*args, mg.w, valid, mg.jumps, mg.i0, ws)
+    if not ex.size:
+        return hx, hf, hv
+    return np.concatenate([hx, ex]), np.concatenate([hf, ef]), np.concatenate([hv, ev])
+
+
 def _hidden_pairs(ev, load, x, f, valid, jumps, i0, ws, depth=3, n_local=33):
     """Extra nodes where f has a local extremum near zero between grid nodes (two roots may hide)."""
-    d = np.diff(f)
+    d = f[1:] - f[:-1]
     sd = np.signbit(d)
     ext = (np.flatnonzero(sd[:-1] != sd[1:]) + 1).tolist()  # nodes where f turns
     skip = {k for j in jumps for k in (j, j + 1)}  # nodes next to a jump cell show a false extremum
@@ -154,6 +229,8 @@ def _hidden_pairs(ev, load, x, f, valid, jumps, i0, ws, depth=3, n_local=33):
         fc, dl, dr = f[c], d[c - 1], d[c]
         if ((dl < 0 < dr and fc > 0) or (dl > 0 > dr and fc < 0)) and abs(fc) < 2.0 * max(abs(dl), abs(dr)):
             cand.append(c)
+    if not cand:
+        return _NONE
     return _refine(ev, load, [(x[c - 1], x[c + 1]) for c in cand], i0, ws, n_local, depth,
                    lambda xs, w, f, v: _hidden_pairs(ev, load, xs, f, v, (), i0, ws, depth - 1, n_local))
 
@@ -172,7 +249,7 @@ def _refine(ev, load, spans, i0, ws, n_local, depth, deeper):
             ex, ef, evv = deeper(xs, w, fl, vl)
             out_x.append(ex), out_f.append(ef), out_v.append(evv)
     if not out_x:
-        return np.empty(0), np.empty(0), np.empty(0, bool)
+        return _NONE
     return np.concatenate(out_x), np.concatenate(out_f), np.concatenate(out_v)
 
 

@@ -37,8 +37,7 @@ from ..errors import ParameterError, SolverError
 from ..models.characteristic import LOSS_FIELDS
 from ..models.units import RPM
 from ..models.validation import choice, positive, real
-from ._bracketing import (_edge_nodes, _Evaluator, _hidden_pairs, _intervals, _scalar_functions, _sign_change_cells,
-                          _unit_grid)
+from ._bracketing import _extra_nodes, _intervals, _scalar_functions, _sign_change_cells, motor_grid
 
 __all__ = ["Margins", "OperatingPoint", "OperatingResult", "SpeedRegulation", "StartingPoint", "StartingResult",
            "operating_points", "speed_regulation", "starting", "METHODS"]
@@ -249,11 +248,14 @@ def _fmt(v):
 # the solver
 
 def _check_load(load):
-    for name in ("torque", "slope", "breakaway_torque"):
-        if not hasattr(load, name):
-            raise ParameterError("load", load, "a load with torque(w), slope(w) and breakaway_torque "
-                                               "(see dcchar.models.loads)")
-    return load
+    """The load's breakaway torque [N*m], after checking that ``load`` is a load."""
+    try:
+        if hasattr(load, "torque") and hasattr(load, "slope"):
+            return float(load.breakaway_torque)
+    except AttributeError:
+        pass
+    raise ParameterError("load", load, "a load with torque(w), slope(w) and breakaway_torque "
+                                       "(see dcchar.models.loads)")
 
 
 def _root_finder(method):
@@ -341,17 +343,18 @@ def operating_points(machine, load, voltage=None, *, grid: int = 112, method: st
     SolverError
         The root finder did not converge on a bracket (carries its RootResults).
     """
-    _check_load(load)
+    breakaway = _check_load(load)
     V = machine.default_voltage() if voltage is None else real("voltage", voltage)
     ws = machine.safe_speed if safe_speed is None else positive("safe_speed", safe_speed, allow_inf=True)
     if isinstance(grid, bool) or not isinstance(grid, (int, np.integer)) or grid < 16:
         raise ParameterError("grid", grid, "an integer >= 16 (number of bracketing nodes)")
     finder = _root_finder(method)
-    circuit = machine.circuit_parameters()
-    ev = _Evaluator(machine, V, circuit=circuit)
-    i0 = float(ev.standstill_current())
-    breakaway = float(load.breakaway_torque)
-    speed_torque, full = _scalar_functions(machine, V, circuit)
+    mg = motor_grid(machine, V, int(grid))
+    i0 = mg.i0
+    if not i0 > 0:
+        return OperatingResult(machine, load, V, ws, (), None, "cannot start",
+                               f"the supply voltage {V:g} V does not exceed the brush drop", 0.0, breakaway)
+    speed_torque, full = _scalar_functions(machine, V)
     load_torque = load.torque
 
     memo, ends = {}, {}
@@ -365,27 +368,16 @@ def operating_points(machine, load, voltage=None, *, grid: int = 112, method: st
         memo[i] = (w, t, tl)
         return t - tl
 
-    if not i0 > 0:
-        return OperatingResult(machine, load, V, ws, (), None, "cannot start",
-                               f"the supply voltage {V:g} V does not exceed the brush drop", 0.0, breakaway)
-    x, jumps = _unit_grid(int(grid))
+    x, jumps, w = mg.x, mg.jumps, mg.w
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        w, t = ev.speed_torque(x * i0)
-        f = t - np.asarray(load_torque(w), dtype=float)
-        finite = np.isfinite(w) & np.isfinite(f)
-        inside = np.isfinite(w) & (np.abs(w) <= ws)
+        f = mg.t - np.asarray(load_torque(w), dtype=float)
+        finite = mg.finite_w & np.isfinite(f)
+        inside = mg.finite_w & (np.abs(w) <= ws)
         valid = inside & finite
-        hx, hf, hv = _hidden_pairs(ev, load, x, f, valid, jumps, i0, ws)
-        ex, ef, evl = _edge_nodes(ev, load, x, w, valid, jumps, i0, ws)
-        if ex.size:
-            hx, hf, hv = np.concatenate([hx, ex]), np.concatenate([hf, ef]), np.concatenate([hv, evl])
-    # the nodes either side of standstill (x = 1 -/+ tiny): torque as the rotor begins to turn.
-    # Normally the speed is positive below I_0; where the flux has reversed at standstill (a
-    # differential compound) the positive-speed side is above it.
-    im = jumps[1]
-    up = not w[im] > 0  # the forward (w > 0) side lies at I_a > I_0
-    fwd, bwd = (im + 1, im) if up else (im, im + 1)
-    t_start, f_start, f_back = float(t[fwd]), float(f[fwd]), float(f[bwd])
+        hx, hf, hv = _extra_nodes(mg, load, f, valid, ws)
+    # the nodes either side of standstill (x = 1 -/+ tiny): torque as the rotor begins to turn
+    up, t_start = mg.up, mg.t_start
+    f_start, f_back = float(f[mg.fwd]), float(f[mg.bwd])
     if hx.size:
         order = np.argsort(np.concatenate([x, hx]), kind="stable")
         xs = np.concatenate([x, hx])[order]
@@ -417,8 +409,8 @@ def operating_points(machine, load, voltage=None, *, grid: int = 112, method: st
             continue  # at the edge of the runaway region, on its far side
         scale = max(abs(t_start), abs(tr), abs(tl), 1e-12)
         (roots if abs(res) <= _ACCEPT * scale else disc).append((r, rr, res))
-    for j in np.flatnonzero((fs_ == 0) & vs):
-        roots.append((xs[j] * i0, None, 0.0))
+    if not fs_.all():  # a node exactly on a root (rare)
+        roots.extend((xs[j] * i0, None, 0.0) for j in np.flatnonzero((fs_ == 0) & vs))
     pts = {}
     for r, rr, res in sorted(roots, key=lambda z: z[0]):
         pts[r] = _make_point(machine, load, r, i0, t_start, breakaway, ws, rr, res, speed_torque, full)
@@ -430,21 +422,23 @@ def operating_points(machine, load, voltage=None, *, grid: int = 112, method: st
                   f"{point.speed_rpm:.1f} r/min ({point.mode})")
     ordered = tuple(sorted(pts.values(), key=lambda p: p.speed))
     return OperatingResult(machine, load, V, ws, ordered, point, reason, detail, t_start, breakaway,
-                           tuple(float(d[0]) for d in disc), (x * i0, ~inside))
+                           tuple(float(d[0]) for d in disc), (mg.Ia, ~inside))
 
 
 def _first_root(xs, valid, i0, pts, up):
     """The first root met from standstill moving along the grid upward (or downward) in I_a,
     stopping at the first node beyond the safe speed or undefined."""
     roots = sorted(pts)
-    bad = xs[~valid]
+    k = int(np.searchsorted(xs, 1.0))  # xs is sorted and has no node at standstill itself
     if up:
-        bad = bad[bad > 1.0]
-        limit = bad.min() * i0 if bad.size else math.inf
+        seg = valid[k:]
+        j = int(seg.argmin()) if seg.size else 0
+        limit = xs[k + j] * i0 if seg.size and not seg[j] else math.inf
         cand = [r for r in roots if i0 < r < limit]
         return pts[cand[0]] if cand else None
-    bad = bad[bad < 1.0]
-    limit = bad.max() * i0 if bad.size else -math.inf
+    seg = valid[k - 1::-1] if k else valid[:0]  # walking down from standstill
+    j = int(seg.argmin()) if seg.size else 0
+    limit = xs[k - 1 - j] * i0 if seg.size and not seg[j] else -math.inf
     cand = [r for r in roots if limit < r < i0]
     return pts[cand[-1]] if cand else None
 

@@ -77,7 +77,10 @@ class Gearing:
 
     def refer_torque(self, load_torque, speed):
         """Load-shaft torque [N*m] seen at the motor shaft [N*m] at motor speed [rad/s]."""
-        return np.asarray(load_torque, dtype=float) * self.factor(load_torque, speed)
+        t = np.asarray(load_torque, dtype=float)
+        if self.efficiency == 1.0 and t.shape == np.shape(speed):  # no gear loss: one factor both ways
+            return t * (1.0 / self.ratio)
+        return t * self.factor(load_torque, speed)
 
     def refer_inertia(self, load_inertia):
         """Load-shaft inertia [kg*m^2] seen at the motor shaft [kg*m^2]."""
@@ -98,7 +101,15 @@ class _Breakaway:
     field."""
 
     def __get__(self, obj, objtype=None):
-        return self if obj is None else obj._breakaway()
+        if obj is None:
+            return self
+        cached = obj.__dict__.get("_breakaway_cache") if hasattr(obj, "__dict__") else None
+        if cached is None:
+            cached = obj._breakaway()
+            params = getattr(type(obj), "__dataclass_params__", None)
+            if params is not None and params.frozen:  # immutable: compute once
+                object.__setattr__(obj, "_breakaway_cache", cached)
+        return cached
 
 
 class Load:
