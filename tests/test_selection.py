@@ -7,6 +7,8 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import given
+from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
 from dcchar.errors import ParameterError
@@ -155,6 +157,20 @@ def test_judge_bands():
     assert judge("yes/no", 1.0, True, 0.05)[0] == "pass"
     v, _ = judge("at most", np.array([1.0, 9.8, 11.0]), 10.0, 0.05)
     assert v.tolist() == ["pass", "marginal", "fail"]
+
+
+_FIGURES = st.one_of(st.floats(allow_nan=True, allow_infinity=True), st.sampled_from([0.0, -0.0, 1.0]))
+
+
+@given(comparison=st.sampled_from(["at least", "at most", "yes/no"]), value=_FIGURES,
+       required=st.one_of(_FIGURES, st.booleans()), marginal=st.floats(0.0, 0.5))
+def test_judge_one_figure_equals_the_array_rule(comparison, value, required, marginal):
+    # the matrix judges one float at a time in plain Python; the tolerance study judges arrays:
+    # both must give the same verdict and margin (reference: the numpy path)
+    verdict, margin = judge(comparison, value, required, marginal)
+    v, m = judge(comparison, np.array([value]), required, marginal)
+    assert verdict == v[0]
+    assert margin == m[0] or (math.isnan(margin) and math.isnan(m[0]))
 
 
 def test_ranking_rule():

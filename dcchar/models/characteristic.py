@@ -11,7 +11,7 @@ import numpy as np
 from ..errors import SolverError
 from .units import RPM
 
-__all__ = ["Characteristic", "NoLoadPoint", "RunawayInfo", "ARRAY_FIELDS", "LOSS_FIELDS"]
+__all__ = ["Characteristic", "NoLoadPoint", "RunawayInfo", "ARRAY_FIELDS", "LOSS_FIELDS", "no_load_point"]
 
 #: The loss terms of a sweep, each an array [W].
 LOSS_FIELDS = ("armature_copper", "external_resistor", "series_field_copper", "shunt_field_copper", "brush",
@@ -132,7 +132,7 @@ class Characteristic:
     @functools.cached_property
     def no_load(self) -> NoLoadPoint:
         """The no-load point on the motoring branch (see :class:`NoLoadPoint`)."""
-        return _per_machine(self.machine, ("no_load", self.voltage), lambda: _no_load(self.machine, self.voltage))
+        return no_load_point(self.machine, self.voltage)
 
     @property
     def no_load_speed(self) -> float:
@@ -188,6 +188,14 @@ class Characteristic:
     def __repr__(self):
         return (f"Characteristic({self.machine.label}, V={self.voltage:g} V, "
                 f"{self.armature_current.size} points)")
+
+
+def no_load_point(machine, voltage: float) -> "NoLoadPoint":
+    """The no-load point of ``machine`` at supply ``voltage`` [V] on the motoring branch, computed
+    once per machine and voltage (the same object :attr:`Characteristic.no_load` gives, without a
+    sweep)."""
+    voltage = float(voltage)
+    return _per_machine(machine, ("no_load", voltage), lambda: _no_load(machine, voltage))
 
 
 def _per_machine(machine, key, compute):

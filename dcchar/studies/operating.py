@@ -34,7 +34,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import ParameterError, SolverError
-from ..models.characteristic import LOSS_FIELDS
+from ..models.characteristic import LOSS_FIELDS, no_load_point
 from ..models.units import RPM
 from ..models.validation import choice, positive, real
 from ._bracketing import _extra_nodes, _intervals, _scalar_functions, _sign_change_cells, motor_grid
@@ -545,7 +545,7 @@ def speed_regulation(machine, load=None, voltage=None, **solver) -> SpeedRegulat
     res = operating_points(machine, load, voltage, **solver)
     if res.point is None:
         raise ParameterError("load", load, f"a full load the motor can carry ({res.reason}: {res.detail})")
-    w_nl = machine.characteristic(res.voltage, [0.0]).no_load.speed
+    w_nl = no_load_point(machine, res.voltage).speed
     w_fl = res.point.speed
     pct = math.inf if math.isinf(w_nl) else (w_nl - w_fl) / w_fl * 100.0
     return SpeedRegulation(w_nl, w_fl, res.point.torque, pct, res.point)
@@ -618,10 +618,10 @@ def starting(machine, voltage=None, external_resistance=None) -> StartingResult:
     rx = nonnegative("external_resistance", rx)
 
     def one(r):
-        m = machine.with_(external_resistance=r)
-        c = m.characteristic(V, [0.0])
-        i = c.locked_rotor_current
+        m = machine if r == machine.external_resistance else machine.with_(external_resistance=r)
+        i = m.locked_rotor_current(V)
+        st = m.scalar_functions(V)[1](i)  # the state at standstill
         mult = i / machine.rating.current if machine.rating else math.nan
-        return StartingPoint(r, i, c.locked_rotor_supply_current, c.locked_rotor_torque, mult)
+        return StartingPoint(r, i, st["supply_current"], st["shaft_torque"], mult)
 
     return StartingResult(V, one(0.0), one(rx))

@@ -12,6 +12,7 @@ import math
 from dataclasses import dataclass, field
 
 from ...errors import ParameterError
+from ...models.characteristic import no_load_point
 from ...models.validation import in_range, nonnegative, positive
 from ..comparison import ControlSettings, apply_settings
 from ..operating import operating_points, speed_regulation, starting
@@ -91,7 +92,7 @@ class Case:
                 return float(self.regulation().no_load_speed)
             except ParameterError:  # no full-load point: fall back to the sweep
                 pass
-        return float(self.machine.characteristic(self.voltage, [0.0]).no_load.speed)
+        return float(no_load_point(self.machine, self.voltage).speed)
 
     @functools.cached_property
     def starter_resistance(self) -> float:

@@ -21,6 +21,7 @@ from typing import ClassVar
 import numpy as np
 
 from ...errors import ParameterError
+from ...models.characteristic import no_load_point
 from ...models.units import RPM
 from ...models.validation import in_range, positive, real
 
@@ -68,6 +69,8 @@ def judge(comparison: str, value, required, marginal: float):
         ``margin``: (value - required)/|required| for "at least", (required - value)/|required|
         for "at most" (positive: met), +1/-1 for "yes/no". A nan figure fails.
     """
+    if isinstance(value, (float, int)) and not isinstance(value, bool):
+        return _judge_one(comparison, float(value), required, marginal)
     v = np.asarray(value, dtype=float)
     if comparison == "yes/no":
         ok = v == float(bool(required))
@@ -75,7 +78,7 @@ def judge(comparison: str, value, required, marginal: float):
         verdict = np.where(ok, "pass", "fail")
     else:
         r = float(required)
-        with np.errstate(invalid="ignore", divide="ignore"):
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
             if math.isinf(r):
                 margin = np.where(np.isfinite(v), np.inf, -np.inf) if comparison == "at most" else np.full(v.shape, -np.inf)
             else:
@@ -86,6 +89,25 @@ def judge(comparison: str, value, required, marginal: float):
     if v.ndim == 0:
         return str(verdict), float(margin)
     return verdict, margin
+
+
+def _judge_one(comparison, v, required, marginal):
+    """:func:`judge` for one float, in plain Python (the matrix asks one cell at a time)."""
+    if comparison == "yes/no":
+        ok = v == float(bool(required))
+        return ("pass", 1.0) if ok else ("fail", -1.0)
+    r = float(required)
+    if math.isinf(r):
+        margin = (math.inf if math.isfinite(v) else -math.inf) if comparison == "at most" else -math.inf
+    else:
+        d = (v - r) if comparison == "at least" else (r - v)
+        try:
+            margin = d / abs(r) if r != 0 else d
+        except OverflowError:  # a subnormal required figure: numpy's answer, an infinite margin
+            margin = math.copysign(math.inf, d)
+    if math.isnan(v):
+        margin = math.nan
+    return ("fail" if not margin >= 0 else ("marginal" if margin < marginal else "pass")), margin
 
 
 @dataclass(frozen=True, kw_only=True)
@@ -586,7 +608,7 @@ class LostField(Requirement):
             if case.machine.connection == "series":
                 return Figure(0.0, "opening the series field opens the armature loop: the motor stops")
             return Figure(case.no_load_speed, "no field circuit to lose: magnets keep their flux")
-        w = abs(case.memo("lost_field", lambda: m.characteristic(case.voltage, [0.0]).no_load.speed))
+        w = abs(case.memo("lost_field", lambda: no_load_point(m, case.voltage).speed))
         conn = case.machine.connection
         left = "the series field only" if conn.endswith("compound") else "the residual flux only"
         return Figure(w, f"with {left}")
