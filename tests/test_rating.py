@@ -105,6 +105,10 @@ def test_impossible_ratings_raise_with_the_reason():
     r = Rating(voltage=220.0, current=10.0, speed=50.0, output=1500.0)
     with pytest.raises(ModelRangeError, match="saturation"):
         equal_rating_family({"armature_resistance": 0.5}, r, magnetization=mag, connections=("shunt",))
+    # a brush drop above the supply: no current flows (common practice, no source)
+    r = Rating(voltage=220.0, current=10.0, speed=100.0, output=1500.0)
+    with pytest.raises(ModelRangeError, match="does not exceed the brush drop"):
+        equal_rating_family({"armature_resistance": 0.5, "brush_drop": 300.0}, r, magnetization=mag)
 
 
 def test_bad_arguments():

@@ -191,7 +191,11 @@ def _rated_current(conn, circuit, loss, V, w_r, T_r, key):
         o = out(i, k, V, *c, *loss)
         return o[3], k
 
-    i_stop = (V - circuit(0.0)[2]) / (circuit(0.0)[0] + circuit(0.0)[1] + _series_drop(conn, circuit(0.0)))
+    c0 = circuit(0.0)
+    if not V > c0[2]:
+        raise ModelRangeError(f"{CONNECTION_LABELS.get(conn, conn)} ({key}): the rated voltage {V:g} V does not "
+                              f"exceed the brush drop {c0[2]:g} V, so no armature current flows")
+    i_stop = (V - c0[2]) / (c0[0] + c0[1] + _series_drop(conn, c0))
     opt = minimize_scalar(lambda i: -state(i)[0], bounds=(0.0, i_stop), method="bounded",
                           options={"xatol": 1e-10 * i_stop})
     t_max = state(opt.x)[0]
