@@ -39,7 +39,7 @@ from ..charts.live import LiveChart
 from ..charts.style import styles_for
 from ..errors import ParameterError
 from ..studies.comparison import ControlSettings, compare, working_currents
-from .controls import Coalescer, _running_loop, from_front_end, labelled_slider
+from .controls import Coalescer, _running_loop, chart_canvas_class, from_front_end, labelled_slider
 from .load_editor import LoadEditor
 from .panels import cautions_html, error_html, results_html, status_html, swatch_html
 
@@ -292,7 +292,7 @@ class Comparer:
     # ------------------------------------------------------------------ construction
     def _make_canvas(self):
         import matplotlib.pyplot as plt
-        from ipympl.backend_nbagg import Canvas, FigureManager
+        from ipympl.backend_nbagg import FigureManager
         from matplotlib.figure import Figure
 
         # Made without pyplot's figure registry (so nothing else displays it) and given an
@@ -301,7 +301,7 @@ class Comparer:
             # ipympl's toolbar passes its canvas on to traitlets, which warns about it
             warnings.filterwarnings("ignore", "Passing unrecognized arguments", DeprecationWarning)
             fig = Figure(figsize=_FIGSIZE_IN, dpi=100)
-            canvas = Canvas(fig)
+            canvas = chart_canvas_class()(fig)
             FigureManager(canvas, 0)
         canvas.header_visible = False
         canvas.footer_visible = False

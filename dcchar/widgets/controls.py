@@ -1,4 +1,5 @@
-"""Small building blocks of the widget kit: labelled sliders, slider ranges, and the update coalescer.
+"""Small building blocks of the widget kit: labelled sliders, slider ranges, the update coalescer
+and the chart canvas.
 
 Nothing here computes anything about motors: the ranges are read off the machines' own parameters
 (their rated voltage, field and armature resistances) so that a slider spans a useful interval.
@@ -8,11 +9,14 @@ from __future__ import annotations
 
 import asyncio
 import math
+import struct
 import time
+import zlib
 
 import ipywidgets as w
 
-__all__ = ["Coalescer", "labelled_slider", "nice_step", "from_front_end", "DESCRIPTION_WIDTH"]
+__all__ = ["Coalescer", "labelled_slider", "nice_step", "from_front_end", "png_rgba", "chart_canvas_class",
+           "DESCRIPTION_WIDTH"]
 
 #: Width of the description column of the controls, so that the sliders line up.
 DESCRIPTION_WIDTH = "190px"
@@ -153,3 +157,71 @@ class Coalescer:
         finally:
             self._running = False
             self._quiet_until = time.monotonic() + self.delay
+
+
+def png_rgba(rgba, *, sparse: bool = False) -> bytes:
+    """An 8-bit RGBA PNG of an image array, encoded for speed rather than size.
+
+    Rows are stored unfiltered and deflated at level 1; ``sparse`` (an image that is mostly
+    zero, such as the difference frame of a blit) deflates runs only, which is faster still and
+    as small for such images. About three times faster than Pillow's encoder on the chart's
+    frames, for a file of about the same size.
+
+    Parameters
+    ----------
+    rgba : array of shape (height, width, 4), uint8
+
+    Returns
+    -------
+    bytes
+        The PNG file (signature, IHDR, one IDAT, IEND; ISO/IEC 15948:2004).
+    """
+    import numpy as np
+
+    height, width = rgba.shape[:2]
+    raw = np.empty((height, 4 * width + 1), dtype=np.uint8)
+    raw[:, 0] = 0  # filter type 0 (none) on every row
+    raw[:, 1:] = np.asarray(rgba, dtype=np.uint8).reshape(height, 4 * width)
+    packer = zlib.compressobj(1, zlib.DEFLATED, 15, 9, zlib.Z_RLE if sparse else zlib.Z_DEFAULT_STRATEGY)
+    data = packer.compress(raw) + packer.flush()
+
+    def chunk(tag, body):
+        return struct.pack(">I", len(body)) + tag + body + struct.pack(">I", zlib.crc32(tag + body))
+
+    header = struct.pack(">IIBBBBB", width, height, 8, 6, 0, 0, 0)  # 8 bits, colour type 6 (RGBA)
+    return b"\x89PNG\r\n\x1a\n" + chunk(b"IHDR", header) + chunk(b"IDAT", data) + chunk(b"IEND", b"")
+
+
+_CANVAS_CLASS = None
+
+
+def chart_canvas_class():
+    """The ipympl canvas class of the kit's charts: ipympl's own, with the frames it sends to the
+    browser encoded by :func:`png_rgba` (a blit of the comparer's chart sends a difference frame
+    of the whole canvas on every slider step). Made on first use, so that importing the widget
+    kit does not import ipympl."""
+    global _CANVAS_CLASS
+    if _CANVAS_CLASS is None:
+        import numpy as np
+        from ipympl.backend_nbagg import Canvas
+
+        class ChartCanvas(Canvas):
+            """ipympl's canvas, sending frames encoded by :func:`png_rgba`."""
+
+            def get_diff_image(self):
+                # the frame logic of matplotlib's web canvas (full frame on a size change, on
+                # transparent pixels or when asked; else only the pixels that changed)
+                if not self._png_is_old:
+                    return None
+                pixels = np.asarray(self.get_renderer().buffer_rgba())
+                buff = pixels.view(np.uint32).squeeze(2)
+                full = self._force_full or buff.shape != self._last_buff.shape or (pixels[:, :, 3] != 255).any()
+                self.set_image_mode("full" if full else "diff")
+                output = buff if full else np.where(buff != self._last_buff, buff, 0)
+                self._last_buff = buff.copy()
+                self._force_full = False
+                self._png_is_old = False
+                return png_rgba(output.view(np.uint8).reshape((*output.shape, 4)), sparse=not full)
+
+        _CANVAS_CLASS = ChartCanvas
+    return _CANVAS_CLASS
