@@ -287,6 +287,26 @@ def test_view_change_redraws_without_solving_again(comparer, family):
     assert_shows(comparer, compare(family, HOIST))
 
 
+def test_slider_steps_blit_and_a_revisited_value_gives_the_same_pixels(comparer):
+    canvas, chart = comparer.canvas, comparer.chart
+    canvas.syncing_data_url = False  # as with a browser attached
+    canvas.draw()
+    pixels = {}
+    for v in (220.0, 219.0, 220.0):
+        comparer.controls["voltage"].value = v
+        if v in pixels:
+            made = dict(chart._glyphs.stats)
+        else:
+            pixels[v] = np.asarray(canvas.buffer_rgba()).copy()
+    assert chart.stats["blit"] >= 3
+    np.testing.assert_array_equal(np.asarray(canvas.buffer_rgba()), pixels[220.0])
+    # the labels' text came from the kept layouts and glyphs: none made again
+    comparer.controls["voltage"].value = 219.0
+    assert {k: chart._glyphs.stats[k] for k in ("layouts", "glyphs")} == {k: made[k] for k in ("layouts", "glyphs")}
+    # the frame sent to the browser is the difference from the last one
+    assert canvas._current_image_mode == "diff"
+
+
 def test_reset_returns_to_the_scenario(comparer, family):
     comparer.controls["voltage"].value = 180.0
     comparer.controls["external_resistance"].value = 1.0

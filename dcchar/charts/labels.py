@@ -44,11 +44,22 @@ def _line_metrics(text: str, fontsize: float) -> tuple:
     return float(w), float(h), float(d)
 
 
+@functools.lru_cache(maxsize=4096)
+def _line_width(text: str, fontsize: float) -> float:
+    """Width [pt] of one line. A line whose digits can be written as 0 without moving a glyph
+    (tabular figures) is measured as that line, so that the changing numbers of a live label
+    are measured once."""
+    from ._glyph_cache import zeroed_digits
+
+    key = zeroed_digits(text, lambda t: _line_metrics(t, fontsize)[0])
+    return _line_metrics(text if key is None else key, fontsize)[0]
+
+
 def text_size_pt(text: str, fontsize: float = LABEL_FONT_SIZE, pad: float = _BOX_PAD) -> tuple:
     """Width and height [pt] of a text block drawn in a box with padding ``pad`` [fraction of the
     font size], as matplotlib lays out lines (line spacing 1.2)."""
     lines = text.split("\n")
-    width = max(_line_metrics(s, fontsize)[0] for s in lines)
+    width = max(_line_width(s, fontsize) for s in lines)
     height = len(lines) * 1.2 * fontsize  # matplotlib's line pitch: 1.2 x the font size
     return width + 2 * pad * fontsize, height + 2 * pad * fontsize
 
@@ -170,7 +181,7 @@ def _place_in_order(order, anchors, sizes_pt, region_pt, count, markers, blocked
     out = [None] * len(anchors)
     leaders = []  # points along the leader lines placed so far [pt]
     t_lead = _T_LEAD
-    grid = np.array([(x, y) for y in np.linspace(ry0, ry1, 12) for x in np.linspace(rx0, rx1, 16)])
+    grid = np.stack(np.meshgrid(np.linspace(rx0, rx1, 16), np.linspace(ry0, ry1, 12)), axis=-1).reshape(-1, 2)
     dirs = _DIRS
     total = 0.0
     for i in order:
@@ -239,9 +250,10 @@ def _sample_counter(samples, region, cell=1.0):
     ny = max(1, int(math.ceil((y1 - y0) / cell)) + 2)
     ix = np.clip(np.floor((samples[:, 0] - x0) / cell).astype(int) + 1, 0, nx - 1)
     iy = np.clip(np.floor((samples[:, 1] - y0) / cell).astype(int) + 1, 0, ny - 1)
-    grid = np.zeros((ny + 1, nx + 1))
-    np.add.at(grid, (iy + 1, ix + 1), 1.0)
-    sat = grid.cumsum(axis=0).cumsum(axis=1)
+    sat = np.bincount((iy + 1) * (nx + 1) + ix + 1, minlength=(ny + 1) * (nx + 1)).astype(np.int32)
+    sat = sat.reshape(ny + 1, nx + 1)
+    np.cumsum(sat, axis=1, out=sat)
+    np.cumsum(sat, axis=0, out=sat)
 
     def count(bx0, by0, bx1, by1):
         c0 = np.clip(np.floor((bx0 - x0) / cell).astype(int) + 1, 0, nx)

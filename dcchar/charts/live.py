@@ -27,6 +27,7 @@ In a notebook with ipympl, build the figure inside ``plt.ioff()`` and pass it in
 
 from __future__ import annotations
 
+import contextlib
 import math
 import textwrap
 
@@ -37,6 +38,7 @@ from ..models.validation import nonnegative
 from .curves import (_ANNOTATION_KW, _BAND_COLOR, _BAND_TEXT, _axis_title, _factor, _legend_kwargs, _legend_labels,
                      _marker_kwargs, _nan_range, _short_names, _spec, _unit, as_list, axis_limits, load_label, load_xy,
                      pair_operating, place_labels, point_values, point_xy, view_xy)
+from ._glyph_cache import GlyphCache, cached_glyphs
 from .labels import arc_markevery, label_groups
 from .style import CONNECTION_STYLES, LOAD_STYLE, chart_style, new_figure, style_key, styles_for
 
@@ -46,6 +48,40 @@ from .style import CONNECTION_STYLES, LOAD_STYLE, chart_style, new_figure, style
 _SCREEN_TEXT = {"text.hinting": "no_hinting"}
 
 __all__ = ["LiveChart"]
+
+
+def _keep_layout(text):
+    """Let ``text`` (a Text) reuse its last layout while its string, font, alignment, spacing,
+    rotation and the renderer stay the same: drawing an annotation lays its text out four times.
+    The layout is relative to the text's position, so a moved label keeps it too."""
+    compute = text._get_layout
+    memo = [None, None]
+
+    def _get_layout(renderer):
+        if text.get_wrap():  # a wrapped text's lines depend on where it stands
+            return compute(renderer)
+        key = (id(renderer), renderer.dpi, text.get_figure(root=True).dpi, text.get_text(), hash(text._fontproperties),
+               text._linespacing, text.get_horizontalalignment(), text.get_verticalalignment(),
+               text._get_multialignment(), text.get_rotation(), text.get_rotation_mode(), text.get_usetex(),
+               matplotlib.rcParams["text.hinting"], matplotlib.rcParams["text.hinting_factor"])
+        if memo[0] != key:
+            memo[0], memo[1] = key, compute(renderer)
+        return memo[1]
+
+    text._get_layout = _get_layout
+
+
+@contextlib.contextmanager
+def _screen_text():
+    """:data:`_SCREEN_TEXT` in force (as ``matplotlib.rc_context``, without copying every rc
+    setting twice a frame)."""
+    rc = matplotlib.rcParams
+    old = {k: rc[k] for k in _SCREEN_TEXT}
+    rc.update(_SCREEN_TEXT)
+    try:
+        yield
+    finally:
+        rc.update(old)
 
 _NEUTRAL = "neutral"
 
@@ -102,6 +138,8 @@ class LiveChart:
         self._band_state = None
         self._label_args = {}
         self._placed_for = None
+        self._glyphs = GlyphCache()
+        self._styled = {}  # style last given to each slot
         self.stats = {"blit": 0, "full": 0, "rescale": 0}
         with chart_style():
             self.axes = ax = figure.add_subplot()
@@ -213,6 +251,9 @@ class LiveChart:
         return line
 
     def _restyle(self, key, style):
+        if self._styled.get(key) == style:
+            return
+        self._styled[key] = style
         line = self.lines[key]
         kw = style.line_kwargs()
         kw.pop("label")
@@ -242,6 +283,7 @@ class LiveChart:
                                        **_ANNOTATION_KW)
             a.set_animated(self.can_blit)
             a.set_in_layout(False)
+            _keep_layout(a)
             self._annotations.append(a)
         return self._annotations[i]
 
@@ -446,10 +488,7 @@ class LiveChart:
             canvas.draw_idle()
             return "full"
         canvas.restore_region(self._background)
-        with matplotlib.rc_context(_SCREEN_TEXT):
-            for a in self._moving():
-                if a.get_visible():
-                    self.figure.draw_artist(a)
+        self._draw_moving(canvas.get_renderer())
         canvas.blit(self.figure.bbox)
         self.stats["blit"] += 1
         return "blit"
@@ -472,7 +511,11 @@ class LiveChart:
         if hasattr(canvas, "copy_from_bbox"):
             self._background = canvas.copy_from_bbox(self.figure.bbox)
             self._pending_full = False
-        with matplotlib.rc_context(_SCREEN_TEXT):
+        self._draw_moving(renderer)
+
+    def _draw_moving(self, renderer):
+        """Draw the visible moving artists, their text from the glyph cache."""
+        with _screen_text(), cached_glyphs(renderer, self._glyphs):
             for a in self._moving():
                 if a.get_visible():
                     a.draw(renderer)
