@@ -54,21 +54,23 @@ def main():
             canvas.draw()  # what the browser's draw request triggers
 
     volts = [230.0 - k for k in range(1, 4 + REPEATS)]
-    times, cpu = [], []
+    times, cpu, parts = [], [], {"compare": [], "chart": [], "panels": []}
     for i, v in enumerate(volts):
         t0, c0 = time.perf_counter(), time.process_time()
         step(v)
         if i >= 3:
             times.append(time.perf_counter() - t0)
             cpu.append(time.process_time() - c0)
+            for k in parts:
+                parts[k].append(comparer.timings[k])
     upd, upd_max = median_ms(times)
+    part = {k: median_ms(v)[0] for k, v in parts.items()}
     print(f"(CPU time of this process per step: median {median_ms(cpu)[0]:.1f} ms; wall time above it means "
           "other processes share the cores)")
     print(f"slider step -> chart blitted and table written: median {upd:.1f} ms, max {upd_max:.1f} ms "
           f"({chart.stats['blit']} blits, {chart.stats['full']} full draws in all)")
-    parts = comparer.timings
-    print(f"  last step: solve {1e3 * parts['compare']:.1f} ms, chart {1e3 * parts['chart']:.1f} ms, "
-          f"table and cautions {1e3 * parts['panels']:.1f} ms")
+    print(f"  medians of the parts: solve {part['compare']:.1f} ms, chart {part['chart']:.1f} ms, "
+          f"table and cautions {part['panels']:.1f} ms")
 
     # what the blit spends on the operating-point labels
     labels = chart.annotations
@@ -120,8 +122,8 @@ def main():
     s_med, _ = median_ms(scratch)
     c_med, _ = median_ms(chart_only_scratch)
     print(f"same update from scratch (solve, new figure drawn in full, table): median {s_med:.1f} ms")
-    print(f"  of which the figure alone: median {c_med:.1f} ms; the live chart's part: "
-          f"{1e3 * parts['chart']:.1f} ms (last step)")
+    print(f"  of which the figure alone: median {c_med:.1f} ms; the live chart's part: median "
+          f"{part['chart']:.1f} ms")
     print(f"ratio update / from scratch: {upd / s_med:.2f} (target at most 0.33); update {upd:.1f} ms "
           f"(target at most 40 ms)")
 
