@@ -153,13 +153,22 @@ def interp_rows(xp, fp, x):
     """Linear interpolation row by row, without a Python loop over rows.
 
     ``xp`` (n, m) must increase along each row where it is finite (nan elsewhere, only at the
-    ends of a row's increasing run); ``x`` is (n, k) or (k,). Outside a row's range: nan.
+    ends of a row's increasing run); ``x`` is (n, k), or (k,) / (1, k) for one set of points
+    shared by every row. Outside a row's range, and in rows with fewer than two finite nodes: nan.
     """
     xp = np.asarray(xp, dtype=float)
     fp = np.asarray(fp, dtype=float)
     n, m = xp.shape
-    x = np.broadcast_to(np.asarray(x, dtype=float), (n, np.shape(x)[-1]))
+    x = np.asarray(x, dtype=float)
+    if x.ndim == 1 or x.shape[0] == 1:
+        y = _interp_shared(xp, fp, x.reshape(-1))
+        if y is not None:
+            return y
+    x = np.broadcast_to(x, (n, x.shape[-1]))
+    if m < 2:
+        return np.full(x.shape, np.nan)
     ok = np.isfinite(xp) & np.isfinite(fp)
+    count = ok.sum(axis=1, keepdims=True)
     lo = np.where(ok, xp, np.inf).min(axis=1, keepdims=True)
     hi = np.where(ok, xp, -np.inf).max(axis=1, keepdims=True)
     span = np.where(hi > lo, hi - lo, 1.0)
@@ -167,7 +176,7 @@ def interp_rows(xp, fp, x):
         key = np.where(ok, (xp - lo) / span, 2.0)  # bad nodes sort to the end of their row
         key = np.minimum(key, 2.0) * 0.25 + np.arange(n)[:, None]
         q = np.clip((x - lo) / span, 0.0, 1.0) * 0.25 + np.arange(n)[:, None]
-    if np.all(key[:, 1:] >= key[:, :-1]):  # already in order (the usual case): no sort
+    if np.all(key[:, 1:] >= key[:, :-1]):  # already in order: no sort
         order = np.broadcast_to(np.arange(m), (n, m)) + (np.arange(n) * m)[:, None]
     else:
         order = np.argsort(key, axis=1, kind="stable") + (np.arange(n) * m)[:, None]  # sorted within rows
@@ -175,7 +184,7 @@ def interp_rows(xp, fp, x):
     flat_sorted = key.ravel()[order]  # rows occupy [row, row + 0.5]: globally sorted
     pos = np.searchsorted(flat_sorted, q.ravel(), side="right").reshape(q.shape)
     row0 = (np.arange(n) * m)[:, None]
-    pos = np.clip(pos, row0 + 1, row0 + m - 1)
+    pos = np.clip(pos, row0 + 1, row0 + np.maximum(count - 1, 1))  # x at a row's last good node: its value
     j1 = order[pos]
     j0 = order[pos - 1]
     x0, x1 = xp.ravel()[j0], xp.ravel()[j1]
@@ -184,6 +193,43 @@ def interp_rows(xp, fp, x):
         t = np.where(x1 > x0, (x - x0) / (x1 - x0), 0.0)
         y = f0 + t * (f1 - f0)
     inside = (x >= lo) & (x <= hi) & np.isfinite(x0) & np.isfinite(x1)
+    return np.where(inside, y, np.nan)
+
+
+def _interp_shared(xp, fp, x):
+    """:func:`interp_rows` for one sorted ``x`` (k,) shared by all rows whose finite nodes form a
+    single strictly increasing run (the usual case); None where that does not hold.
+
+    Instead of searching each of the n*k points among the nodes, it places each node among the k
+    points (a search in a short sorted array) and counts, row by row, the nodes at or below each
+    point: that count is the point's cell.
+    """
+    n, m = xp.shape
+    k = x.size
+    if m < 2 or not np.all(x[1:] >= x[:-1]):  # (also False for nan)
+        return None
+    ok = np.isfinite(xp) & np.isfinite(fp)
+    count = ok.sum(axis=1)
+    first = np.argmax(ok, axis=1)
+    cols = np.arange(m)
+    if not np.array_equal(ok, (cols >= first[:, None]) & (cols < (first + count)[:, None])):
+        return None  # a gap inside a row
+    with np.errstate(invalid="ignore"):
+        if not np.all((xp[:, 1:] > xp[:, :-1]) | ~(ok[:, 1:] & ok[:, :-1])):
+            return None  # not increasing
+        cell = np.where(ok, np.searchsorted(x, xp, side="left"), k)  # points below each node
+    bins = np.bincount((cell + np.arange(n)[:, None] * (k + 1)).ravel(), minlength=n * (k + 1))
+    below = np.cumsum(bins.reshape(n, k + 1)[:, :k], axis=1)  # nodes <= each point, per row
+    last = (first + count - 1)[:, None]
+    end = xp[np.arange(n), np.maximum(last[:, 0], 0)][:, None]
+    top = count[:, None] - 1
+    inside = (count[:, None] >= 2) & (below >= 1) & ((below <= top) | (x == end))
+    j0 = np.clip(first[:, None] + np.minimum(below, top) - 1, 0, m - 2) + (np.arange(n) * m)[:, None]
+    flat_x, flat_f = xp.ravel(), fp.ravel()
+    x0, x1 = flat_x[j0], flat_x[j0 + 1]
+    f0, f1 = flat_f[j0], flat_f[j0 + 1]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        y = f0 + (x - x0) / (x1 - x0) * (f1 - f0)
     return np.where(inside, y, np.nan)
 
 
