@@ -211,19 +211,31 @@ def _per_machine(machine, key, compute):
         return value
 
 
+_LIGHT = np.geomspace(1e-9, 1.0, 240)  # light-load search grid, a fraction of the standstill current
+_LIGHT.flags.writeable = False
+
+
+def _light_load(machine, voltage):
+    """(I_a grid, speed, shaft torque) from 1e-9 to 1 of the standstill current, shared by the
+    no-load and runaway searches of one machine and voltage."""
+    def compute():
+        grid = machine.locked_rotor_current(voltage) * _LIGHT
+        return (grid, *machine.speed_torque_arrays(voltage, grid))
+    return _per_machine(machine, ("light load", voltage), compute)
+
+
 def _no_load(machine, voltage) -> NoLoadPoint:
     i_lr = machine.locked_rotor_current(voltage)
     if i_lr <= 0:
         return NoLoadPoint(0.0, 0.0, 0.0)
-    grid = i_lr * np.geomspace(1e-9, 1.0, 240)
-    st = machine.state_arrays(voltage, grid)
-    t = st["shaft_torque"]
+    grid, w, t = _light_load(machine, voltage)
     good = np.isfinite(t)
     if good.any() and t[good][0] > 0:
         # no loss holds the speed: the limit I_a -> 0+
-        k0 = machine.state_arrays(voltage, np.zeros(1))["kphi"][0]  # flux at exactly zero current
-        speed = math.inf if not k0 > 0 else float(st["speed"][0])
-        return NoLoadPoint(0.0, speed, float(st["supply_current"][0] - grid[0]))
+        st = machine.state_arrays(voltage, np.array([0.0, grid[0]]))
+        k0 = st["kphi"][0]  # flux at exactly zero current
+        speed = math.inf if not k0 > 0 else float(w[0])
+        return NoLoadPoint(0.0, speed, float(st["supply_current"][1] - grid[0]))
     idx = np.nonzero(good[:-1] & good[1:] & (t[:-1] <= 0) & (t[1:] > 0))[0]
     if idx.size == 0:
         return NoLoadPoint(math.nan, math.nan, math.nan)
@@ -234,16 +246,15 @@ def _no_load(machine, voltage) -> NoLoadPoint:
         i0 = brentq(lambda i: machine.scalar_state(voltage, i)[1], a, b, xtol=1e-12 * i_lr, rtol=1e-12)
     except (ValueError, RuntimeError) as exc:  # pragma: no cover - bracket is checked above
         raise SolverError(f"no-load point of the {machine.label} machine did not converge: {exc}") from exc
-    s = machine.state_arrays(voltage, np.array([i0]))
-    return NoLoadPoint(float(i0), float(s["speed"][0]), float(s["supply_current"][0]))
+    s = machine.scalar_functions(voltage)[1](float(i0))
+    return NoLoadPoint(float(i0), float(s["speed"]), float(s["supply_current"]))
 
 
 def _runaway(machine, voltage, safe_speed, no_load: NoLoadPoint) -> RunawayInfo | None:
     if not (no_load.speed > safe_speed):
         return None
     i_lr = machine.locked_rotor_current(voltage)
-    grid = i_lr * np.geomspace(1e-9, 1.0, 240)
-    w = machine.state_arrays(voltage, grid)["speed"]
+    grid, w, _ = _light_load(machine, voltage)
     fast = ~(np.isfinite(w) & (np.abs(w) <= safe_speed))
     # the largest current at which the speed is still beyond the safe speed
     j = int(np.nonzero(fast)[0].max())

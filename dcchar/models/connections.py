@@ -264,6 +264,22 @@ class Machine:
                    supply_current=full(IL), kphi=full(kphi))
         return out
 
+    def speed_torque_arrays(self, voltage: float, current) -> tuple:
+        """(speed [rad/s], shaft torque [N*m]) at armature currents ``current`` [A] and supply
+        ``voltage`` [V]: the two outputs of :meth:`state_arrays` that a search along the
+        characteristic needs, for less work (inf/nan where kphi = 0, without warnings)."""
+        conn = self.connection
+        circuit = self.circuit_parameters()
+        Ia = np.asarray(current, dtype=float)
+        if conn == "permanent_magnet":
+            F = np.zeros_like(Ia)
+        else:
+            F = symbolic.excitation_kernel(conn)(Ia, voltage, *circuit, self.armature_reaction.excitation(Ia))[0]
+        with np.errstate(all="ignore"):
+            w, t = symbolic.speed_torque_kernel(conn)(Ia, self._kphi(F, Ia), voltage, *circuit,
+                                                      *self._loss_parameters())
+        return np.broadcast_to(w, Ia.shape), np.broadcast_to(t, Ia.shape)
+
     def scalar_functions(self, voltage: float):
         """Pure-Python ``speed_torque(I_a) -> (speed, shaft torque)`` and ``full(I_a) -> dict`` at
         supply ``voltage`` [V], with the circuit bound once (built per machine and voltage, cached).

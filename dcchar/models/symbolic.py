@@ -198,6 +198,16 @@ def output_kernel(connection: str, scalar: bool = False):
     return sp.lambdify(_args(connection, "output"), exprs, modules=modules, cse=True)
 
 
+@functools.lru_cache(maxsize=None)
+def speed_torque_kernel(connection: str):
+    """numpy kernel ``f(I_a, kphi, V, *circuit, *losses) -> (speed, shaft torque)``: the part of
+    :func:`output_kernel` that searches along a characteristic need."""
+    import sympy as sp
+
+    out = output_expressions(connection)
+    return sp.lambdify(_args(connection, "output"), [out["speed"], out["shaft_torque"]], modules="numpy", cse=True)
+
+
 def equations_latex(connection: str) -> list[str]:
     """The equations of ``connection`` as LaTeX lines, with the magnetization as a function."""
     import sympy as sp

@@ -19,14 +19,7 @@ _NONE = (np.empty(0), np.empty(0), np.empty(0, bool))  # no extra nodes
 for _a in _NONE:
     _a.flags.writeable = False
 
-@functools.lru_cache(maxsize=None)
-def _speed_torque_kernel(connection: str):
-    """numpy kernel f(I_a, kphi, V, *circuit, *losses) -> (speed, shaft torque), from the sympy equations."""
-    import sympy as sp
-
-    out = symbolic.output_expressions(connection)
-    return sp.lambdify(symbolic._args(connection, "output"), [out["speed"], out["shaft_torque"]],
-                       modules="numpy", cse=True)
+_speed_torque_kernel = symbolic.speed_torque_kernel
 
 
 #: Names of circuit values that a study may replace by arrays (see :class:`_Evaluator`).
