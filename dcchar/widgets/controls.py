@@ -162,10 +162,11 @@ class Coalescer:
 def png_rgba(rgba, *, sparse: bool = False) -> bytes:
     """An 8-bit RGBA PNG of an image array, encoded for speed rather than size.
 
-    Rows are stored unfiltered and deflated at level 1; ``sparse`` (an image that is mostly
-    zero, such as the difference frame of a blit) deflates runs only, which is faster still and
-    as small for such images. About three times faster than Pillow's encoder on the chart's
-    frames, for a file of about the same size.
+    Rows are stored unfiltered and deflated at level 1. With ``sparse`` (an image that is mostly
+    zero, such as the difference frame of a blit) only the rows holding a non-zero byte are
+    deflated, runs only; runs of zero rows are written from deflate segments made once per
+    width. About three times faster than Pillow's encoder on the chart's frames (five times on a
+    difference frame), for a file of about the same size.
 
     Parameters
     ----------
@@ -174,22 +175,62 @@ def png_rgba(rgba, *, sparse: bool = False) -> bytes:
     Returns
     -------
     bytes
-        The PNG file (signature, IHDR, one IDAT, IEND; ISO/IEC 15948:2004).
+        The PNG file (signature, IHDR, one IDAT, IEND; ISO/IEC 15948:2004). Its zlib stream
+        (RFC 1950) is made of deflate segments (RFC 1951) each ended by a sync flush, and an
+        empty final block.
     """
     import numpy as np
 
     height, width = rgba.shape[:2]
-    raw = np.empty((height, 4 * width + 1), dtype=np.uint8)
-    raw[:, 0] = 0  # filter type 0 (none) on every row
-    raw[:, 1:] = np.asarray(rgba, dtype=np.uint8).reshape(height, 4 * width)
-    packer = zlib.compressobj(1, zlib.DEFLATED, 15, 9, zlib.Z_RLE if sparse else zlib.Z_DEFAULT_STRATEGY)
-    data = packer.compress(raw) + packer.flush()
+    rows = np.asarray(rgba, dtype=np.uint8).reshape(height, 4 * width)
+    if not sparse:
+        raw = np.empty((height, 4 * width + 1), dtype=np.uint8)
+        raw[:, 0] = 0  # filter type 0 (none) on every row
+        raw[:, 1:] = rows
+        packer = zlib.compressobj(1, zlib.DEFLATED, 15, 9)
+        data = packer.compress(raw) + packer.flush()
+    else:
+        ink = rows.any(axis=1)
+        edges = np.flatnonzero(np.diff(ink.astype(np.int8))) + 1
+        parts, adler = [b"\x78\x01"], 1  # zlib header: deflate, 32 kB window, fastest
+        a, b = 1, 0  # the two sums of Adler-32
+        for run in np.split(np.arange(height), edges):
+            if not len(run):
+                continue
+            if ink[run[0]]:
+                raw = np.zeros((len(run), 4 * width + 1), dtype=np.uint8)
+                raw[:, 1:] = rows[run[0]:run[-1] + 1]
+                packer = zlib.compressobj(1, zlib.DEFLATED, -15, 9, zlib.Z_RLE)
+                parts.append(packer.compress(raw) + packer.flush(zlib.Z_SYNC_FLUSH))
+                adler = zlib.adler32(raw, (b << 16) | a)
+                a, b = adler & 0xFFFF, adler >> 16
+            else:
+                n = len(run)
+                parts.extend(_zero_rows(width, 1 << k) for k in range(n.bit_length()) if n >> k & 1)
+                b = (b + n * (4 * width + 1) * a) % 65521  # zeros leave the first sum as it is
+        parts.append(zlib.compressobj(1, zlib.DEFLATED, -15).flush())  # the final, empty block
+        parts.append(struct.pack(">I", (b << 16) | a))
+        data = b"".join(parts)
 
     def chunk(tag, body):
         return struct.pack(">I", len(body)) + tag + body + struct.pack(">I", zlib.crc32(tag + body))
 
     header = struct.pack(">IIBBBBB", width, height, 8, 6, 0, 0, 0)  # 8 bits, colour type 6 (RGBA)
     return b"\x89PNG\r\n\x1a\n" + chunk(b"IHDR", header) + chunk(b"IDAT", data) + chunk(b"IEND", b"")
+
+
+_ZERO_ROWS: dict = {}
+
+
+def _zero_rows(width: int, count: int) -> bytes:
+    """A deflate segment (sync-flushed) of ``count`` unfiltered all-zero PNG rows ``width`` pixels wide."""
+    key = (width, count)
+    if key not in _ZERO_ROWS:
+        if len(_ZERO_ROWS) > 256:
+            _ZERO_ROWS.clear()
+        packer = zlib.compressobj(1, zlib.DEFLATED, -15, 9, zlib.Z_RLE)
+        _ZERO_ROWS[key] = packer.compress(bytes(count * (4 * width + 1))) + packer.flush(zlib.Z_SYNC_FLUSH)
+    return _ZERO_ROWS[key]
 
 
 _CANVAS_CLASS = None
