@@ -90,7 +90,8 @@ class GlyphCache:
         self._sizes: dict = {}
         self._zeros: dict = {}
         self._layouts: dict = {}
-        self._glyphs: dict = {}
+        self._glyphs: dict = {}  # (font id, size, face) -> {(glyph index, fx, fy): bitmap, "font": font}
+        self._made = 0
         self.stats = {"lines": 0, "layouts": 0, "measures": 0, "glyphs": 0, "passed": 0}
 
     def clear(self):
@@ -144,7 +145,8 @@ class GlyphCache:
         return width, max(h - d for _, h, d in boxes) + descent, descent
 
     def _layout(self, renderer, prop, face, text):
-        """Glyphs of a line: (font, glyph index, x, y) [px from the line's origin]."""
+        """Glyphs of a line: (font, glyph index, x, y) [1/64 px from the line's origin, as the
+        renderer rounds them]."""
         items = self._layouts.get((face, text))
         if items is not None:
             return items
@@ -159,25 +161,26 @@ class GlyphCache:
             if font is None:
                 font = self._put(self._fonts, face, renderer._prepare_font(prop), 64)
             font.set_size(prop.get_size_in_points(), renderer.dpi)
-            items = tuple((it.ft_object, it.glyph_index, it.x, it.y) for it in font._layout(text, flags=face[2]))
+            items = tuple((it.ft_object, it.glyph_index, round(0x40 * it.x), round(0x40 * it.y))
+                          for it in font._layout(text, flags=face[2]))
             self.stats["layouts"] += 1
         return self._put(self._layouts, (face, text), items, self.max_lines)
 
-    def _glyph(self, ft, size, face, index, fx, fy):
-        """(fraction of the background let through, left, top [px]) of a glyph drawn with its pen
-        at (fx, fy) [1/64 px] in the pixel at the origin."""
-        key = (id(ft), size, face, index, fx, fy)
-        g = self._glyphs.get(key)
-        if g is None:
-            from matplotlib.ft2font import RenderMode
+    def _glyph(self, ft, size, face, table, index, fx, fy):
+        """(fraction of the background let through, left, top, rows, columns [px]) of a glyph
+        drawn with its pen at (fx, fy) [1/64 px] in the pixel at the origin; kept in ``table``."""
+        from matplotlib.ft2font import RenderMode
 
-            ft.set_size(size, face[1])
-            ft._set_transform(_IDENTITY, [fx, fy])
-            bitmap = ft._render_glyph(index, face[2], RenderMode.NORMAL)
-            cover = np.asarray(bitmap.buffer, dtype=np.float32)
-            g = self._put(self._glyphs, key, (1.0 - cover / 255.0, int(bitmap.left), int(bitmap.top), ft),
-                          self.max_glyphs)  # the font is kept with its bitmaps: its id is in the key
-            self.stats["glyphs"] += 1
+        ft.set_size(size, face[1])
+        ft._set_transform(_IDENTITY, [fx, fy])
+        bitmap = ft._render_glyph(index, face[2], RenderMode.NORMAL)
+        keep = 1.0 - np.asarray(bitmap.buffer, dtype=np.float32) / 255.0
+        self.stats["glyphs"] += 1
+        self._made += 1
+        if self._made > self.max_glyphs:  # start again (the table at hand is dropped after this line)
+            self._glyphs.clear()
+            self._made = 0
+        table[(index, fx, fy)] = g = (keep, int(bitmap.left), int(bitmap.top), *keep.shape)
         return g
 
     # ------------------------------------------------------------------ drawing
@@ -197,23 +200,29 @@ class GlyphCache:
         ox = (round(0x40 * x) + _QUARTER // 2) // _QUARTER * _QUARTER
         oy = (round(0x40 * (height - y)) + _QUARTER // 2) // _QUARTER * _QUARTER
         placed = []
+        tables = self._glyphs
         for ft, index, dx, dy in items:
-            px, py = ox + round(0x40 * dx), oy + round(0x40 * dy)
-            keep, left, top, _ = self._glyph(ft, size, face, index, px & 63, py & 63)
-            if keep.size:
-                placed.append((keep, (px >> 6) + left, (py >> 6) + top))
+            px, py = ox + dx, oy + dy
+            fx, fy = px & 63, py & 63
+            # one table of bitmaps per font object (kept in the key with its id) and size
+            table = tables.get((id(ft), size, face))
+            if table is None:
+                table = tables[(id(ft), size, face)] = {"font": ft}
+            g = table.get((index, fx, fy)) or self._glyph(ft, size, face, table, index, fx, fy)
+            if g[3] and g[4]:
+                placed.append((g[0], (px >> 6) + g[1], (py >> 6) + g[2], g[3], g[4]))
         if not placed:
             return True
         x0 = min(p[1] for p in placed)
-        x1 = max(p[1] + p[0].shape[1] for p in placed)
+        x1 = max(p[1] + p[4] for p in placed)
         t0 = max(p[2] for p in placed)
-        t1 = min(p[2] - p[0].shape[0] for p in placed)
+        t1 = min(p[2] - p[3] for p in placed)
         # overlapping glyphs blend as Agg blends them one after the other: the background left
         # is the product of what each lets through
         through = np.ones((t0 - t1, x1 - x0), dtype=np.float32)
-        for keep, left, top in placed:
+        for keep, left, top, rows, cols in placed:
             r, c = t0 - top, left - x0
-            through[r:r + keep.shape[0], c:c + keep.shape[1]] *= keep
+            through[r:r + rows, c:c + cols] *= keep
         cover = np.rint(255.0 * (1.0 - through)).astype(np.uint8)
         renderer._renderer.draw_text_image(cover, x0, int(height) - t0 + cover.shape[0], 0, gc)
         self.stats["lines"] += 1
