@@ -154,9 +154,12 @@ def test_live_text_context_restores_the_renderer():
 
 
 # ------------------------------------------------------------------ frames sent to the browser
-@settings(max_examples=30, deadline=None)
-@given(st.integers(1, 40), st.integers(1, 40), st.integers(0, 2**32 - 1), st.booleans())
-def test_png_rgba_decodes_to_the_image(height, width, seed, sparse):
+@settings(max_examples=40, deadline=None)
+@given(st.integers(1, 40), st.integers(1, 40), st.integers(0, 2**32 - 1), st.booleans(), st.floats(0.0, 1.0))
+def test_png_rgba_decodes_to_the_image(height, width, seed, sparse, blank_rows):
+    import struct
+    import zlib
+
     from PIL import Image
 
     from dcchar.widgets.controls import png_rgba
@@ -165,9 +168,14 @@ def test_png_rgba_decodes_to_the_image(height, width, seed, sparse):
     rgba = rng.integers(0, 256, (height, width, 4), dtype=np.uint8)
     if sparse:
         rgba[rng.random((height, width)) < 0.8] = 0
-    # reference: Pillow's PNG decoder
-    decoded = np.asarray(Image.open(io.BytesIO(png_rgba(rgba, sparse=sparse))).convert("RGBA"))
+        rgba[rng.random(height) < blank_rows] = 0  # runs of zero rows, written from kept segments
+    png = png_rgba(rgba, sparse=sparse)
+    # reference: Pillow's PNG decoder, and zlib for the stream with its Adler-32 check
+    decoded = np.asarray(Image.open(io.BytesIO(png)).convert("RGBA"))
     assert_array_equal(decoded, rgba)
+    assert png[12:16] == b"IHDR" and png[37:41] == b"IDAT"
+    raw = zlib.decompress(png[41:41 + struct.unpack(">I", png[33:37])[0]])
+    assert len(raw) == height * (4 * width + 1)
 
 
 def test_kit_canvas_frames_are_the_web_canvas_frames():

@@ -307,6 +307,32 @@ def test_slider_steps_blit_and_a_revisited_value_gives_the_same_pixels(comparer)
     assert canvas._current_image_mode == "diff"
 
 
+def test_label_boxes_placed_again_only_when_their_points_move_a_pixel(comparer, monkeypatch):
+    import dcchar.charts.live as live
+
+    chart = comparer.chart
+    placed, real = [], live.place_labels
+    monkeypatch.setattr(live, "place_labels", lambda *a, **k: placed.append(1) or real(*a, **k))
+
+    def points_px():
+        return chart.axes.transData.transform([a.xy for a in chart.annotations])
+
+    comparer.canvas.syncing_data_url = False  # as with a browser attached
+    comparer.canvas.draw()  # the layout engine sizes the axes: the boxes are placed for it
+    assert placed == [1]
+    placed.clear()
+    start = points_px()
+    comparer.controls["voltage"].value = 229.9  # a tenth of a volt: the points move well under a pixel
+    assert np.abs(points_px() - start).max() < live._STILL_PX
+    assert placed == []
+    comparer.controls["voltage"].value = 200.0  # far: placed again
+    assert placed == [1]
+    comparer.canvas.draw()  # (the boxes' patches are sized when drawn)
+    boxes = [a.get_bbox_patch().get_window_extent(chart.figure.canvas.get_renderer()) for a in chart.annotations]
+    ax_box = chart.axes.bbox
+    assert all(ax_box.x0 <= b.x0 and b.x1 <= ax_box.x1 and ax_box.y0 <= b.y0 and b.y1 <= ax_box.y1 for b in boxes)
+
+
 def test_reset_returns_to_the_scenario(comparer, family):
     comparer.controls["voltage"].value = 180.0
     comparer.controls["external_resistance"].value = 1.0

@@ -32,6 +32,7 @@ import math
 import textwrap
 
 import matplotlib
+import numpy as np
 
 from ..models.units import display_units
 from ..models.validation import nonnegative
@@ -39,7 +40,7 @@ from .curves import (_ANNOTATION_KW, _BAND_COLOR, _BAND_TEXT, _axis_title, _fact
                      _marker_kwargs, _nan_range, _short_names, _spec, _unit, as_list, axis_limits, load_label, load_xy,
                      pair_operating, place_labels, point_values, point_xy, view_xy)
 from ._glyph_cache import GlyphCache, cached_glyphs
-from .labels import arc_markevery, label_groups
+from .labels import arc_markevery, label_groups, text_size_pt
 from .style import CONNECTION_STYLES, LOAD_STYLE, chart_style, new_figure, style_key, styles_for
 
 #: The moving artists of the live chart (labels, markers) are drawn with unhinted glyphs: they
@@ -84,6 +85,9 @@ def _screen_text():
         rc.update(old)
 
 _NEUTRAL = "neutral"
+
+#: Label boxes are placed again once a point has moved this far since they were placed. [px]
+_STILL_PX = 1.0
 
 
 class LiveChart:
@@ -138,6 +142,7 @@ class LiveChart:
         self._band_state = None
         self._label_args = {}
         self._placed_for = None
+        self._placed = None  # what the label boxes were last placed for
         self._glyphs = GlyphCache()
         self._styled = {}  # style last given to each slot
         self.stats = {"blit": 0, "full": 0, "rescale": 0}
@@ -292,17 +297,35 @@ class LiveChart:
         return ax.get_position().bounds, ax.get_xlim(), ax.get_ylim(), tuple(self.figure.get_size_inches())
 
     def _place_labels(self):
-        """Place the visible label boxes in the current geometry of the axes."""
+        """Place the visible label boxes in the current geometry of the axes.
+
+        The boxes keep their offsets when nothing the placement looks at has changed but for
+        the points moving by less than :data:`_STILL_PX` since the boxes were placed (a slider
+        step often moves them by a fraction of a pixel): the same geometry, box sizes, texts to
+        avoid and band. The curves are not compared; they pass through the points.
+        """
         shown = self.annotations
-        self._placed_for = self._geometry()
+        geometry = self._geometry()
+        self._placed_for = geometry
         if not shown:
+            self._placed = None
             return
         avoid = [t for t in (self.note, self.band_label) if t.get_visible()]
+        args = self._label_args
+        fixed = (geometry, tuple(text_size_pt(a.get_text(), 6) for a in shown), args.get("top"),
+                 tuple((t.get_text(), tuple(t.get_position()), t.get_horizontalalignment(),
+                        t.get_verticalalignment()) for t in avoid))
+        points = self.axes.transData.transform(list([a.xy for a in shown]) + list(args.get("markers", ())))
+        last = self._placed
+        if (last is not None and last[0] == fixed and last[1].shape == points.shape
+                and np.all(np.abs(points - last[1]) < _STILL_PX)):
+            return
         offsets = place_labels(self.axes, [a.xy for a in shown], [a.get_text() for a in shown], fontsize=6,
-                               avoid=avoid, **self._label_args)
+                               avoid=avoid, **args)
         for a, (dx, dy, ha) in zip(shown, offsets):
             a.xyann = (dx, dy)
             a.set_horizontalalignment(ha)
+        self._placed = (fixed, points)
 
     def _label_axes(self):
         spec = _spec(self._view)
