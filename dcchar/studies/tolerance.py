@@ -11,8 +11,8 @@ numpy Generator) and computes, for each candidate of a selection matrix,
     that holds only at nominal values is flagged as fragile.
 
 The samples run down the rows of one array and are evaluated together by the lambdified kernels
-of :mod:`dcchar.models.symbolic` (see :mod:`dcchar.studies.selection.sampled`); no Python loop
-runs over samples.
+of :mod:`dcchar.models.symbolic` (see :mod:`dcchar.studies.selection.sampled`), in blocks of a
+few hundred rows that stay in a core's cache; no Python loop runs over samples.
 
 Sampling (per sample, independently): each winding resistance (armature, series, shunt) times
 (1 + r*u) with its own u; all windings at one temperature drawn from ``winding_temperature``
@@ -224,6 +224,11 @@ _CURRENT_NODES = np.concatenate([np.geomspace(1e-6, 0.02, 16), np.linspace(0.02,
                                  np.linspace(0.3, 1.0, 15)[1:]])
 
 
+#: Samples evaluated together: arrays of this many rows by one grid stay in a core's cache (the
+#: draws are still made ``_CHUNK`` at a time, so the samples do not depend on it).
+_BLOCK = 500
+
+
 def _speed_on_grid(w, t, ws, grid):
     from .selection._vector import interp_rows
 
@@ -240,7 +245,8 @@ def _band_chunk(s: SampleCase, grid):
 
 
 def _draws(matrix, spread, samples, seed, progress, work):
-    """Run ``work(key, SampleCase) -> result`` on chunks of every candidate; progress in [0, 1]."""
+    """Run ``work(key, SampleCase) -> result`` on blocks of :data:`_BLOCK` samples of every
+    candidate (drawn ``_CHUNK`` at a time); progress in [0, 1] after each chunk."""
     if isinstance(samples, bool) or not isinstance(samples, (int, np.integer)) or samples < 1:
         raise ParameterError("samples", samples, "an integer >= 1")
     if not isinstance(spread, Spread):
@@ -254,7 +260,8 @@ def _draws(matrix, spread, samples, seed, progress, work):
         parts = []
         for start in range(0, samples, _CHUNK):
             n = min(_CHUNK, samples - start)
-            parts.append(work(key, sample_case(matrix.cases[key], spread, n, rng)))
+            s = sample_case(matrix.cases[key], spread, n, rng)
+            parts.extend(work(key, s if n <= _BLOCK else s.rows(slice(a, a + _BLOCK))) for a in range(0, n, _BLOCK))
             done += n
             if progress is not None:
                 progress(done / total)

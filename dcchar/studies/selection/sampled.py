@@ -51,6 +51,11 @@ class SampleCase:
         conn = m.connection
         self.names = set(__import__("dcchar.models.symbolic", fromlist=["x"]).CIRCUIT_PARAMETERS[conn])
 
+    def rows(self, index) -> "SampleCase":
+        """Some of the samples (``index``: a slice or an array of row numbers) as a SampleCase of their own."""
+        return SampleCase(self.case, *(np.asarray(v)[index] for v in (self.Ra, self.Rs, self.Rfw, self.vf,
+                                                                       self.scale)))
+
     # ---- evaluators
     def evaluator(self, *, voltage_fraction=1.0, extra_rx=0.0, field_extra=0.0, field_open=False,
                   diverter=None):
