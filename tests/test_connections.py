@@ -258,3 +258,16 @@ def test_short_shunt_locked_rotor_current_makes_emf_zero():
     c = m.characteristic(230.0, [i_lr])
     assert_allclose(c.emf, 0.0, atol=1e-9)
     assert_allclose(c.speed, 0.0, atol=1e-9)
+
+
+def test_speed_torque_arrays_equal_the_full_state():
+    # the two-output kernel is lambdified from the same sympy expressions as the full one
+    # (reference: Machine.state_arrays)
+    from dcchar.studies.demo import DEMO_RATING, demo_family
+
+    for m in demo_family().values():
+        i = np.linspace(-0.5, 1.5, 41) * m.locked_rotor_current(DEMO_RATING.voltage)
+        w, t = m.speed_torque_arrays(DEMO_RATING.voltage, i)
+        st = m.state_arrays(DEMO_RATING.voltage, i)
+        assert_allclose(w, st["speed"], rtol=1e-12, atol=0.0)
+        assert_allclose(t, st["shaft_torque"], rtol=1e-12, atol=1e-12 * DEMO_RATING.torque)
