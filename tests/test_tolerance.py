@@ -14,7 +14,7 @@ from dcchar.models.magnetics import LinearMagnetization
 from dcchar.studies.demo import DEMO_RATING, demo_family
 from dcchar.studies.selection import (AccelerationTime, ConstantPowerRange, LostField, LostLoad, Lowering, LowSpeed,
                                       SpeedHold, StartingTorque, TopSpeed, default_requirements, selection_matrix)
-from dcchar.studies.tolerance import Spread, curve_bands, percentiles, tolerance_study
+from dcchar.studies.tolerance import Spread, curve_bands, percentiles, sample_case, tolerance_study
 
 R = DEMO_RATING
 
@@ -133,3 +133,67 @@ def test_temperature_spreads_move_resistance_and_magnets():
     warm = tolerance_study(m, Spread(resistance=0.0, magnetization=0.0, supply_voltage=0.0,
                                      winding_temperature=(25.0, 125.0)), samples=500)
     assert np.ptp(warm.figures[("pm", "low_speed")]) > 0
+
+
+def _dense_band(case, spread, samples, seed, grid, q):
+    """Reference band: the same samples (drawn as curve_bands draws them), each swept over 6,400
+    current nodes, read off its running branch with numpy.interp; numpy.percentile over them."""
+    s = sample_case(case, spread, samples, np.random.default_rng(seed))
+    x = np.unique(np.concatenate([np.geomspace(1e-6, 0.02, 400), np.linspace(0.02, 1.0, 6000)]))
+    ev = s.evaluator()
+    with np.errstate(all="ignore"):
+        w, t = ev.speed_torque(np.asarray(ev.standstill_current()).reshape(-1, 1) * x)
+    w = np.broadcast_to(w, t.shape)
+    speed = np.full((samples, grid.size), np.nan)
+    for r in range(samples):
+        with np.errstate(invalid="ignore"):
+            ok = np.isfinite(w[r]) & np.isfinite(t[r]) & (np.abs(w[r]) <= case.safe_speed)
+        j = np.argmax(ok)
+        run = ok[j:] & np.concatenate([[True], np.diff(t[r, j:]) >= 0])  # within the safe speed, torque rising
+        n = run.size if run.all() else np.argmin(run)
+        if n >= 2:
+            speed[r] = np.interp(grid, t[r, j:j + n], w[r, j:j + n], left=np.nan, right=np.nan)
+    cover = np.isfinite(speed).mean(axis=0)
+    pct = np.array([np.percentile(c[np.isfinite(c)], q) if np.isfinite(c).any() else np.full(len(q), np.nan)
+                    for c in speed.T]).T
+    return pct, cover
+
+
+@pytest.mark.parametrize("key, rtol, coverage", [
+    ("shunt", 1e-5, 0.0), ("separately_excited", 1e-5, 0.0), ("permanent_magnet", 1e-5, 0.0),
+    ("long_shunt_compound", 3e-4, 0.0), ("short_shunt_compound", 3e-4, 0.0), ("series", 1e-2, 0.1),
+    ("differential_long_shunt_compound", 1e-2, 0.01), ("differential_short_shunt_compound", 1e-2, 0.01)])
+def test_band_matches_a_dense_sweep(key, rtol, coverage):
+    # regression, not published: the band's nodes against 6,400 nodes on the same samples, numpy.interp
+    # and numpy.percentile as the reference; the tolerances are those stated in curve_bands
+    fam = demo_family(differential=True)
+    m = selection_matrix({key: fam[key]}, Fan(rated_speed=R.speed, rated_torque=0.9 * R.torque), [LostLoad()])
+    b = curve_bands(m, Spread(), samples=400, seed=11)[key]
+    pct, cover = _dense_band(m.cases[key], Spread(), 400, 11, b.torque, b.percentiles)
+    both = np.isfinite(b.speed) & np.isfinite(pct)
+    assert both.sum() > 60
+    assert_allclose(b.speed[both], pct[both], rtol=rtol)
+    assert_allclose(b.coverage, cover, atol=coverage + 1e-12)
+
+
+def test_blocks_and_node_split_leave_the_band_unchanged(monkeypatch):
+    # How the samples are cut into blocks, and which nodes are swept for every sample, are matters of
+    # speed: blocks of 7 samples and every node for every sample give the same band.
+    import dcchar.studies.tolerance as tolerance
+
+    fam = demo_family()
+    m = selection_matrix({k: fam[k] for k in ("shunt", "series")}, Fan(rated_speed=R.speed, rated_torque=0.9 * R.torque),
+                         [LostLoad()])
+    spread = Spread(winding_temperature=(0.0, 150.0), supply_voltage=0.1)  # hot, low-voltage samples sweep further
+    sweeps = []
+    curves = tolerance._curves
+    monkeypatch.setattr(tolerance, "_curves", lambda s, nodes: sweeps.append(s.n) or curves(s, nodes))
+    a = curve_bands(m, spread, samples=1200, seed=4)
+    assert len(sweeps) > 2 * 3  # three blocks per candidate, and the rest of the nodes for some samples
+    monkeypatch.setattr(tolerance, "_BLOCK", 7)
+    monkeypatch.setattr(tolerance, "_REACH", math.inf)
+    b = curve_bands(m, spread, samples=1200, seed=4)
+    for key in a:
+        assert np.array_equal(a[key].speed, b[key].speed, equal_nan=True)
+        assert np.array_equal(a[key].nominal_speed, b[key].nominal_speed, equal_nan=True)
+        assert_allclose(a[key].point_speed, b[key].point_speed, rtol=1e-10)
