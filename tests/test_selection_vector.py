@@ -31,6 +31,7 @@ def _rows(seed, n=40, m=30):
         fp[r, b:] = np.nan
     xp[0] = np.nan  # no node at all
     xp[1, 1:] = np.nan  # a single node
+    xp[-1, :-1] = np.nan  # a single node, the last of the array
     return xp, fp
 
 

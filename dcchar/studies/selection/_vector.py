@@ -217,20 +217,24 @@ def _interp_shared(xp, fp, x):
     with np.errstate(invalid="ignore"):
         if not np.all((xp[:, 1:] > xp[:, :-1]) | ~(ok[:, 1:] & ok[:, :-1])):
             return None  # not increasing
-        cell = np.where(ok, np.searchsorted(x, xp, side="left"), k)  # points below each node
-    bins = np.bincount((cell + np.arange(n)[:, None] * (k + 1)).ravel(), minlength=n * (k + 1))
-    below = np.cumsum(bins.reshape(n, k + 1)[:, :k], axis=1)  # nodes <= each point, per row
-    last = (first + count - 1)[:, None]
-    end = xp[np.arange(n), np.maximum(last[:, 0], 0)][:, None]
-    top = count[:, None] - 1
-    inside = (count[:, None] >= 2) & (below >= 1) & ((below <= top) | (x == end))
-    j0 = np.clip(first[:, None] + np.minimum(below, top) - 1, 0, m - 2) + (np.arange(n) * m)[:, None]
+        cell = np.searchsorted(x, xp, side="left")  # points below each node
+    cell[~ok] = k  # counted nowhere
+    cell += np.arange(n)[:, None] * (k + 1)
+    below = np.bincount(cell.ravel(), minlength=n * (k + 1)).reshape(n, k + 1)[:, :k].cumsum(axis=1)  # nodes <= point
+    rows = np.arange(n)
+    lo = np.where(count >= 2, xp[rows, first], np.inf)[:, None]
+    hi = xp[rows, np.maximum(first + count - 1, 0)][:, None]
+    j0 = np.clip(below, 1, np.maximum(count - 1, 1)[:, None])  # a point on the last node: the last cell
+    j0 += (first - 1)[:, None]
+    np.minimum(j0, m - 2, out=j0)  # (rows of one node)
+    j0 += (rows * m)[:, None]
+    j1 = j0 + 1
     flat_x, flat_f = xp.ravel(), fp.ravel()
-    x0, x1 = flat_x[j0], flat_x[j0 + 1]
-    f0, f1 = flat_f[j0], flat_f[j0 + 1]
+    x0, f0 = flat_x.take(j0), flat_f.take(j0)
     with np.errstate(invalid="ignore", divide="ignore"):
-        y = f0 + (x - x0) / (x1 - x0) * (f1 - f0)
-    return np.where(inside, y, np.nan)
+        y = f0 + (x - x0) / (flat_x.take(j1) - x0) * (flat_f.take(j1) - f0)
+    y[~((x >= lo) & (x <= hi))] = np.nan
+    return y
 
 
 def increasing_prefix(values):
