@@ -10,6 +10,10 @@ Otherwise, and whenever the background must change (new limits, new legend, resi
 switch), it asks for a full draw; a ``draw_event`` handler then grabs the new background and
 draws the moving artists on top.
 
+On screen the moving texts are drawn from kept glyph bitmaps and line layouts
+(:mod:`dcchar.charts._glyph_cache`), and the label boxes keep their places while their points
+move by less than a pixel; saved figures are drawn by matplotlib as usual.
+
 Examples
 --------
 Headless, as in the tests::
