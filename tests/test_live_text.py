@@ -153,6 +153,18 @@ def test_live_text_context_restores_the_renderer():
     assert "draw_text" not in vars(r) and "get_text_width_height_descent" not in vars(r)
 
 
+def test_without_the_font_engine_calls_text_is_left_to_the_renderer(monkeypatch):
+    # the glyph cache uses matplotlib's internal FreeType calls; where a version lacks them the
+    # renderer draws its own text (reference: the renderer itself)
+    import dcchar.charts._glyph_cache as gc_mod
+
+    monkeypatch.setattr(gc_mod, "_font_engine_supported", lambda: False)
+    fig = _canvas()
+    r = fig.canvas.get_renderer()
+    with cached_glyphs(r, GlyphCache()):
+        assert "draw_text" not in vars(r)
+
+
 # ------------------------------------------------------------------ frames sent to the browser
 @settings(max_examples=40, deadline=None)
 @given(st.integers(1, 40), st.integers(1, 40), st.integers(0, 2**32 - 1), st.booleans(), st.floats(0.0, 1.0))

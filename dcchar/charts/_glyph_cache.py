@@ -26,6 +26,7 @@ unchanged. Saved figures never come here.
 from __future__ import annotations
 
 import contextlib
+import functools
 import re
 
 import numpy as np
@@ -229,11 +230,23 @@ class GlyphCache:
         return True
 
 
+@functools.lru_cache(maxsize=1)
+def _font_engine_supported() -> bool:
+    """True where matplotlib's FreeType wrapper has the layout and glyph calls used here (they are
+    internal to matplotlib; where a version lacks one, text is left to the renderer)."""
+    try:
+        from matplotlib.ft2font import FT2Font, RenderMode  # noqa: F401
+    except ImportError:
+        return False
+    return all(hasattr(FT2Font, name) for name in ("_layout", "_render_glyph", "_set_transform", "get_char_index"))
+
+
 @contextlib.contextmanager
 def cached_glyphs(renderer, cache: GlyphCache):
     """While active, ``renderer.draw_text`` and ``renderer.get_text_width_height_descent`` go
-    through ``cache`` (Agg renderers only; any other renderer is left as it is)."""
-    if not (hasattr(renderer, "_renderer") and hasattr(renderer, "_prepare_font")
+    through ``cache`` (Agg renderers only, with a matplotlib whose font engine has the calls used
+    here; any other renderer is left as it is)."""
+    if not (_font_engine_supported() and hasattr(renderer, "_renderer") and hasattr(renderer, "_prepare_font")
             and hasattr(renderer._renderer, "draw_text_image")):
         yield renderer
         return

@@ -252,6 +252,8 @@ def chart_canvas_class():
             def get_diff_image(self):
                 # the frame logic of matplotlib's web canvas (full frame on a size change, on
                 # transparent pixels or when asked; else only the pixels that changed)
+                if not all(hasattr(self, a) for a in ("_png_is_old", "_force_full", "_last_buff")):
+                    return super().get_diff_image()  # a matplotlib whose web canvas differs: its own encoder
                 if not self._png_is_old:
                     return None
                 pixels = np.asarray(self.get_renderer().buffer_rgba())
