@@ -27,7 +27,8 @@ from dcchar.studies.duty import DutyCycle, DutySegment, classify_duty, rms
 from dcchar.studies.duty_machine import MachineSegment, compare_duty
 from dcchar.studies.operating import operating_points
 from dcchar.studies.starter_steps import starter_steps
-from dcchar.studies.transients import _Circuit, simulate_start
+from dcchar.studies._transient_engine import _Circuit
+from dcchar.studies.transients import simulate_start
 
 
 def median_ms(fn, repeat):

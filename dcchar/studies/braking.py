@@ -26,7 +26,8 @@ import numpy as np
 
 from ..errors import ParameterError
 from ..models.validation import in_range, nonnegative, positive, real
-from .transients import Transient, VoltageRamp, _balance, simulate
+from ._transient_engine import balance
+from .transients import Transient, VoltageRamp, simulate
 
 __all__ = ["BrakingResult", "dynamic_braking", "plugging", "regenerative_braking", "can_regenerate"]
 
@@ -120,7 +121,7 @@ def can_regenerate(machine) -> tuple[bool, str]:
 def _initial(machine, load, voltage, initial_speed, initial_current):
     """Speed and current at the moment of switching: the steady motoring point by default."""
     if initial_speed is None:
-        st = _balance(machine, load, voltage, machine.external_resistance)
+        st = balance(machine, load, voltage, machine.external_resistance)
         if st is None:
             raise ParameterError("initial_speed", None, "a speed [rad/s]: the machine has no steady point with "
                                                         "this load to start braking from")
