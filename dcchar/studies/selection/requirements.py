@@ -556,22 +556,30 @@ class ConstantPowerRange(Requirement):
 
 
 @dataclass(frozen=True, kw_only=True)
-class LostLoad(Requirement):
-    """Speed if the load falls away (the no-load speed), at most ``value`` [rad/s]; None: each
-    machine's safe speed."""
+class _SpeedLimit(Requirement):
+    """A speed at most ``value`` [rad/s]; None: each machine's safe speed."""
 
     value: float | None = None
-    figure: ClassVar[str] = "lost_load"
-    title: ClassVar[str] = "speed on loss of load"
     unit: ClassVar[str] = "rad/s"
     comparison: ClassVar[str] = "at most"
+    _limited: ClassVar[str] = ""  # what the description says is limited
 
     def required_for(self, case):
         return case.safe_speed if self.value is None else float(self.value)
 
     def describe(self):
         lim = "the safe speed" if self.value is None else format_value(self.value, "rad/s")
-        return self.description or f"no runaway on loss of load: no-load speed at most {lim}"
+        return self.description or f"{self._limited} at most {lim}"
+
+
+@dataclass(frozen=True, kw_only=True)
+class LostLoad(_SpeedLimit):
+    """Speed if the load falls away (the no-load speed), at most ``value`` [rad/s]; None: each
+    machine's safe speed."""
+
+    figure: ClassVar[str] = "lost_load"
+    title: ClassVar[str] = "speed on loss of load"
+    _limited: ClassVar[str] = "no runaway on loss of load: no-load speed"
 
     def compute(self, case):
         w = case.no_load_speed
@@ -582,25 +590,16 @@ class LostLoad(Requirement):
 
 
 @dataclass(frozen=True, kw_only=True)
-class LostField(Requirement):
+class LostField(_SpeedLimit):
     """No-load speed with the shunt (or separate) field circuit open, at most ``value`` [rad/s];
     None: each machine's safe speed. The figure is the magnitude of the speed (with the field
     gone, armature reaction can reverse the flux and the rotor run backward). Shunt and separately excited: residual flux only; compound:
     the series field only. A series field is in the armature loop (opening it stops the motor)
     and magnets cannot be switched off, so those keep their no-load speed."""
 
-    value: float | None = None
     figure: ClassVar[str] = "lost_field"
     title: ClassVar[str] = "speed on loss of field"
-    unit: ClassVar[str] = "rad/s"
-    comparison: ClassVar[str] = "at most"
-
-    def required_for(self, case):
-        return case.safe_speed if self.value is None else float(self.value)
-
-    def describe(self):
-        lim = "the safe speed" if self.value is None else format_value(self.value, "rad/s")
-        return self.description or f"no runaway on loss of field: speed at most {lim}"
+    _limited: ClassVar[str] = "no runaway on loss of field: speed"
 
     def compute(self, case):
         m = case.field_lost()
