@@ -181,6 +181,16 @@ def test_starting_direct_and_with_resistance():
     assert len(s.to_rows()) == 2 and "<table>" in s._repr_html_()
 
 
+def test_starting_below_the_brush_drop_gives_no_current():
+    # a supply below the brush drop drives no armature current (common practice, no source); a
+    # series field with no residual flux then has kphi = 0 at standstill, which must not fail
+    m = Series(armature_resistance=0.5, brush_drop=2.0, magnetization=LinearMagnetization(100.0, 100.0),
+               series_turns=10.0, series_resistance=0.1)
+    s = starting(m, 1.0, external_resistance=1.0)
+    assert s.direct.armature_current == 0.0 and s.with_resistance.armature_current == 0.0
+    assert not s.direct.torque > 0.0  # no torque to start (nan: the speed is undefined with no flux)
+
+
 def test_cannot_start_and_runs_away():
     m = _se_linear()
     i_lr = 230.0 / 0.4

@@ -11,7 +11,8 @@ import numpy as np
 from ..errors import SolverError
 from .units import RPM
 
-__all__ = ["Characteristic", "NoLoadPoint", "RunawayInfo", "ARRAY_FIELDS", "LOSS_FIELDS", "no_load_point"]
+__all__ = ["Characteristic", "NoLoadPoint", "RunawayInfo", "ARRAY_FIELDS", "LOSS_FIELDS", "no_load_point",
+           "standstill_state"]
 
 #: The loss terms of a sweep, each an array [W].
 LOSS_FIELDS = ("armature_copper", "external_resistor", "series_field_copper", "shunt_field_copper", "brush",
@@ -144,17 +145,15 @@ class Characteristic:
         """Armature current at standstill without further resistance. [A]"""
         return self.machine.locked_rotor_current(self.voltage)
 
-    @functools.cached_property
+    @property
     def locked_rotor_torque(self) -> float:
         """Shaft torque at standstill. [N*m]"""
-        s = self.machine.state_arrays(self.voltage, np.array([self.locked_rotor_current]))
-        return float(s["shaft_torque"][0])
+        return standstill_state(self.machine, self.voltage)["shaft_torque"]
 
-    @functools.cached_property
+    @property
     def locked_rotor_supply_current(self) -> float:
         """Supply current at standstill (field current included). [A]"""
-        s = self.machine.state_arrays(self.voltage, np.array([self.locked_rotor_current]))
-        return float(s["supply_current"][0])
+        return standstill_state(self.machine, self.voltage)["supply_current"]
 
     @functools.cached_property
     def runaway(self) -> RunawayInfo | None:
@@ -196,6 +195,17 @@ def no_load_point(machine, voltage: float) -> "NoLoadPoint":
     sweep)."""
     voltage = float(voltage)
     return _per_machine(machine, ("no_load", voltage), lambda: _no_load(machine, voltage))
+
+
+def standstill_state(machine, voltage: float) -> dict:
+    """Every quantity of :meth:`Machine.state_arrays` (as floats) at the standstill current of
+    ``machine`` at supply ``voltage`` [V], computed once per machine and voltage."""
+    voltage = float(voltage)
+
+    def compute():
+        st = machine.state_arrays(voltage, np.array([machine.locked_rotor_current(voltage)]))
+        return {k: float(v[0]) for k, v in st.items()}
+    return _per_machine(machine, ("standstill", voltage), compute)
 
 
 def _per_machine(machine, key, compute):

@@ -34,7 +34,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..errors import ParameterError, SolverError
-from ..models.characteristic import LOSS_FIELDS, no_load_point
+from ..models.characteristic import LOSS_FIELDS, no_load_point, standstill_state
 from ..models.units import RPM
 from ..models.validation import choice, positive, real
 from ._bracketing import _extra_nodes, _intervals, _scalar_functions, _sign_change_cells, motor_grid
@@ -620,7 +620,7 @@ def starting(machine, voltage=None, external_resistance=None) -> StartingResult:
     def one(r):
         m = machine if r == machine.external_resistance else machine.with_(external_resistance=r)
         i = m.locked_rotor_current(V)
-        st = m.scalar_functions(V)[1](i)  # the state at standstill
+        st = standstill_state(m, V)
         mult = i / machine.rating.current if machine.rating else math.nan
         return StartingPoint(r, i, st["supply_current"], st["shaft_torque"], mult)
 
