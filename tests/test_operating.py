@@ -18,7 +18,6 @@ from dcchar.models.loads import ConstantTorque, Fan, Linear, Quadratic
 from dcchar.models.losses import RotationalLoss
 from dcchar.models.magnetics import Froehlich, LinearMagnetization
 from dcchar.models.units import RPM
-from dcchar.studies._bracketing import _scalar_functions
 from dcchar.studies.operating import METHODS, operating_points, speed_regulation, starting
 
 
@@ -233,7 +232,7 @@ def test_scalar_functions_equal_scalar_state():
     m = Compound(armature_resistance=0.2, brush_drop=2.0, magnetization=Froehlich(320.0, 2500.0, 120.0),
                  field_resistance=150.0, field_turns=2000.0, series_turns=20.0, series_resistance=0.03,
                  shunt_connection="short", rotational_loss=RotationalLoss(viscous=0.01, core_eddy=1e-3))
-    fn, _ = _scalar_functions(m, 230.0)
+    fn, _ = m.scalar_functions(230.0)
     for i in (-300.0, 1.0, 57.3, 900.0):
         assert fn(i) == m.scalar_state(230.0, i)
 

@@ -2,7 +2,7 @@
 
 Private to :mod:`dcchar.studies.operating` and :mod:`dcchar.studies.control`: the speed and
 shaft torque of a machine on arrays of armature current (with some circuit values replaced by
-arrays of settings), pure-Python scalar functions for root finders, the grid of I_a/I_0 with its
+arrays of settings), the grid of I_a/I_0 with its
 two discontinuities, and the search for roots that hide between grid nodes.
 """
 
@@ -18,8 +18,6 @@ _TINY = 1e-9  # offset of grid nodes from the two discontinuities (I_a = 0 and s
 _NONE = (np.empty(0), np.empty(0), np.empty(0, bool))  # no extra nodes
 for _a in _NONE:
     _a.flags.writeable = False
-
-_speed_torque_kernel = symbolic.speed_torque_kernel
 
 
 #: Names of circuit values that a study may replace by arrays (see :class:`_Evaluator`).
@@ -68,7 +66,7 @@ class _Evaluator:
         """(speed, shaft torque) arrays; call inside ``np.errstate`` (kphi = 0 gives inf/nan)."""
         F = self.excitation(Ia)[0]
         kphi = self.machine._kphi(F, Ia)
-        return _speed_torque_kernel(self.connection)(Ia, kphi, self.voltage, *self.circuit, *self.loss)
+        return symbolic.speed_torque_kernel(self.connection)(Ia, kphi, self.voltage, *self.circuit, *self.loss)
 
     def full_state(self, Ia):
         """Every kernel output at ``Ia`` (arrays): the outputs of the symbolic kernels plus kphi."""
@@ -153,12 +151,6 @@ def motor_grid(machine, voltage: float, grid: int) -> MotorGrid:
             cache.clear()
         g = cache[key] = MotorGrid(machine, voltage, grid)
     return g
-
-
-def _scalar_functions(machine, voltage, circuit=None):
-    """Pure-Python (speed, shaft torque) and full-state functions of I_a: the machine's own
-    :meth:`~dcchar.models.connections.Machine.scalar_functions` (``circuit`` is the machine's)."""
-    return machine.scalar_functions(voltage)
 
 
 @functools.lru_cache(maxsize=64)

@@ -37,7 +37,7 @@ from ..errors import ParameterError, SolverError
 from ..models.characteristic import LOSS_FIELDS, no_load_point, standstill_state
 from ..models.units import RPM
 from ..models.validation import choice, positive, real
-from ._bracketing import _extra_nodes, _intervals, _scalar_functions, _sign_change_cells, motor_grid
+from ._bracketing import _extra_nodes, _intervals, _sign_change_cells, motor_grid
 
 __all__ = ["Margins", "OperatingPoint", "OperatingResult", "SpeedRegulation", "StartingPoint", "StartingResult",
            "operating_points", "speed_regulation", "starting", "METHODS"]
@@ -249,13 +249,10 @@ def _fmt(v):
 
 def _check_load(load):
     """The load's breakaway torque [N*m], after checking that ``load`` is a load."""
-    try:
-        if hasattr(load, "torque") and hasattr(load, "slope"):
-            return float(load.breakaway_torque)
-    except AttributeError:
-        pass
-    raise ParameterError("load", load, "a load with torque(w), slope(w) and breakaway_torque "
-                                       "(see dcchar.models.loads)")
+    if not all(hasattr(load, name) for name in ("torque", "slope", "breakaway_torque")):
+        raise ParameterError("load", load, "a load with torque(w), slope(w) and breakaway_torque "
+                                           "(see dcchar.models.loads)")
+    return float(load.breakaway_torque)
 
 
 def _root_finder(method):
@@ -354,7 +351,7 @@ def operating_points(machine, load, voltage=None, *, grid: int = 112, method: st
     if not i0 > 0:
         return OperatingResult(machine, load, V, ws, (), None, "cannot start",
                                f"the supply voltage {V:g} V does not exceed the brush drop", 0.0, breakaway)
-    speed_torque, full = _scalar_functions(machine, V)
+    speed_torque, full = machine.scalar_functions(V)
     load_torque = load.torque
 
     memo, ends = {}, {}

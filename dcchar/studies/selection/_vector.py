@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from ...models import symbolic
 from .._bracketing import _Evaluator, settling_cells
 from ..control import _anderson_bjorck, _state_at_roots
 
@@ -39,13 +40,9 @@ class ScaledEvaluator(_Evaluator):
         return self.machine._kphi(F, Ia) * self.scale
 
     def speed_torque(self, Ia):
-        from .._bracketing import _speed_torque_kernel
-
-        return _speed_torque_kernel(self.connection)(Ia, self.kphi(Ia), self.voltage, *self.circuit, *self.loss)
+        return symbolic.speed_torque_kernel(self.connection)(Ia, self.kphi(Ia), self.voltage, *self.circuit, *self.loss)
 
     def full_state(self, Ia):
-        from ...models import symbolic
-
         F, If, Is, IL = self.excitation(Ia)
         kphi = self.machine._kphi(F, Ia) * self.scale
         with np.errstate(all="ignore"):
