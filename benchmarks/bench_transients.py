@@ -61,7 +61,6 @@ def start_fixed_step(dt=5e-5, t_end=None):
     mode = (False, 1.0, False, 1.0)
     y = None
     t = 0.0
-    ws = []
     switch_times = []
     for j, total in enumerate(totals):
         c = _Circuit(MACHINE, J, armature_voltage=230.0, external_resistance=total - base)
@@ -76,7 +75,6 @@ def start_fixed_step(dt=5e-5, t_end=None):
             k4 = c.derivatives(t + dt, [a + dt * b for a, b in zip(y, k3)], mode, LOAD)[0]
             y = [a + dt / 6 * (p + 2 * q + 2 * r + s) for a, p, q, r, s in zip(y, k1, k2, k3, k4)]
             t += dt
-            ws.append(y[1])
             if not last and k1[0] < 0 and y[0] <= i2:
                 switch_times.append(t)
                 break

@@ -56,9 +56,9 @@ from .style import LOAD_STYLE, chart_style, new_figure, styles_for
 
 __all__ = [
     "VIEWS", "ViewSpec", "draw_view", "torque_speed_chart", "current_torque_chart", "speed_current_chart",
-    "efficiency_torque_chart", "efficiency_power_chart", "view_xy", "point_xy", "point_label", "point_values",
+    "efficiency_torque_chart", "efficiency_power_chart", "view_xy", "point_xy", "point_values",
     "load_xy",
-    "axis_limits", "lowest_safe_speed", "as_list", "pair_operating", "place_labels", "load_label", "merge_labels",
+    "axis_limits", "lowest_safe_speed", "as_list", "pair_operating", "place_labels", "load_label",
 ]
 
 
@@ -166,16 +166,6 @@ def point_values(point, units: str = "si") -> tuple:
     w = float(point.speed) / _factor("speed", units)
     t = float(point.torque) / _factor("torque", units)
     return f"{w:.0f} {_unit('speed', units)}", f"{_fmt(t)} {_unit('torque', units)}"
-
-
-def point_label(point, units: str = "si", name: str | None = None) -> str:
-    """Label of one operating point: the connection's short name (when given) on the first line,
-    then speed and torque in display units; an unstable point says so in words:
-    ``"shunt\n1151 r/min, 89.5 N·m"``, ``"series, unstable\n-1498 r/min, 75.8 N·m"``."""
-    from .labels import group_text
-
-    w, t = point_values(point, units)
-    return group_text([(name or "", w, t, bool(getattr(point, "stable", True)))])
 
 
 def load_xy(load, speed_range_si: tuple, view: str, units: str = "si", points: int = 200):
@@ -360,26 +350,6 @@ def place_labels(ax, anchors, texts=None, fontsize: float = 6.0, top=None, *, li
 
 
 # ---------------------------------------------------------------- drawing
-def merge_labels(anchors, texts, decimals: int = 6) -> tuple:
-    """Drop repeated labels: points with the same text at the same place get one label.
-
-    Returns
-    -------
-    tuple of list
-        (anchors, texts) without repeats, in first-seen order.
-    """
-    seen = set()
-    out_a, out_t = [], []
-    for (x, y), t in zip(anchors, texts):
-        key = (t, round(float(x), decimals), round(float(y), decimals))
-        if key in seen:
-            continue
-        seen.add(key)
-        out_a.append((x, y))
-        out_t.append(t)
-    return out_a, out_t
-
-
 def _marker_kwargs(style, stable: bool) -> dict:
     color = style.color if style is not None else "#000000"
     marker = style.marker if style is not None else "o"

@@ -16,9 +16,6 @@ from ..studies.comparison import TABLE_COLUMNS
 
 __all__ = ["display_table", "format_value", "table_csv", "write_table_csv", "table_markdown", "table_html"]
 
-_SPEED_RPM = {"rad/s"}
-
-
 def display_table(comparison, units: str = "si", columns=None):
     """Headings and rows of ``comparison`` in the display ``units`` (``"si"`` or ``"us"``).
 

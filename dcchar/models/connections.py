@@ -184,14 +184,6 @@ class Machine:
     def _circuit(self) -> tuple:
         raise NotImplementedError
 
-    def machine_constant(self, excitation, armature_current):
-        """Machine constant at net ``excitation`` [A-turns] and armature current [A]. [V*s/rad]
-
-        For wound fields this is the magnetization curve at F; for permanent magnets the magnet
-        constant at its temperature less the armature-reaction share.
-        """
-        return self._kphi(excitation, armature_current)
-
     def loop_resistance(self) -> float:
         """Resistance of the armature loop seen by I_a at standstill (for locked-rotor current). [ohm]"""
         return self.hot_armature_resistance + self.external_resistance

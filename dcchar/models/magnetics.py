@@ -65,16 +65,6 @@ class Magnetization:
         """Excitation that gives machine constant ``kphi`` [V*s/rad]. [A-turns]"""
         return self.excitation_for_emf(np.asarray(kphi, dtype=float) * self.reference_speed)
 
-    def scaled(self, factor: float) -> "Magnetization":
-        """The same curve with every EMF multiplied by ``factor`` (a flux tolerance band)."""
-        return _ScaledMagnetization(self, positive("factor", factor))
-
-    # --- sympy form, for showing equations
-    def sympy_expr(self, F):  # pragma: no cover - overridden where a closed form exists
-        import sympy as sp
-
-        return sp.Function("E_0")(F)
-
 
 @dataclass(frozen=True)
 class LinearMagnetization(Magnetization):
@@ -106,11 +96,6 @@ class LinearMagnetization(Magnetization):
 
     def _f_inverse(self, e):
         return e / self.slope
-
-    def sympy_expr(self, F):
-        import sympy as sp
-
-        return sp.Float(self.residual_emf) + sp.Float(self.slope) * F
 
 
 @dataclass(frozen=True)
@@ -161,11 +146,6 @@ class Froehlich(Magnetization):
     def _f_inverse(self, e):
         out = self.b * e / (self.a - e)
         return np.where(e < self.a, out, np.nan)
-
-    def sympy_expr(self, F):
-        import sympy as sp
-
-        return sp.Float(self.residual_emf) + sp.Float(self.a) * F / (sp.Float(self.b) + sp.Abs(F))
 
 
 class TabulatedMagnetization(Magnetization):
@@ -249,22 +229,6 @@ class TabulatedMagnetization(Magnetization):
     def __repr__(self):
         return (f"TabulatedMagnetization(excitation={self.points_excitation.tolist()}, "
                 f"emf={self.points_emf.tolist()}, reference_speed={self.reference_speed})")
-
-
-@dataclass(frozen=True, eq=False)
-class _ScaledMagnetization(Magnetization):
-    base: Magnetization
-    factor: float
-
-    def __post_init__(self):
-        object.__setattr__(self, "reference_speed", self.base.reference_speed)
-        object.__setattr__(self, "residual_emf", self.base.residual_emf * self.factor)
-
-    def _f(self, F):
-        return self.factor * self.base._f(F)
-
-    def _f_inverse(self, e):
-        return self.base._f_inverse(e / self.factor)
 
 
 # --------------------------------------------------------------------------------------------
