@@ -12,8 +12,8 @@ import pytest
 from dcchar.errors import ParameterError
 from dcchar.models.cautions import DEFERENCE
 from dcchar.models.connections import PermanentMagnet
-from dcchar.models.loads import ConstantTorque, Gearing, Hoist
-from dcchar.studies.cautions import Thresholds, cautions_for
+from dcchar.models.loads import ConstantTorque, Fan, Gearing, Hoist
+from dcchar.studies.cautions import Thresholds, all_cautions, cautions_for
 from dcchar.studies.demo import DEMO_RATING, demo_family
 from dcchar.studies.operating import operating_points
 
@@ -125,3 +125,20 @@ def test_nothing_applies_gives_no_list_and_defer_closes_every_list():
 def test_thresholds_validate():
     with pytest.raises(ParameterError):
         Thresholds(starting_multiple=-1.0)
+
+
+def test_every_study_shows_the_machine_cautions_with_the_load_ones():
+    # a series motor must never run unloaded (common practice, no source): the machine-only rule
+    # comes with the load rules wherever cautions are shown (comparison and selection matrix)
+    from dcchar.studies.comparison import compare
+    from dcchar.studies.selection import StartingCurrent, selection_matrix
+
+    load = Fan(rated_speed=DEMO_RATING.speed, rated_torque=0.9 * DEMO_RATING.torque)
+    r = operating_points(FAM["series"], load)
+    codes = [c.code for c in all_cautions(FAM["series"], load, r)]
+    assert "series_no_load" in codes and "starting_current" in codes and codes[-1] == "defer"
+    assert compare({"series": FAM["series"]}, load).candidates["series"].cautions == all_cautions(
+        FAM["series"], load, r)
+    m = selection_matrix({"series": FAM["series"]}, load, [StartingCurrent(value=1e6)])
+    lead = m.cases["series"]
+    assert m.cautions == all_cautions(lead.machine, load, lead.operating)

@@ -158,7 +158,7 @@ class Characteristic:
     @functools.cached_property
     def runaway(self) -> RunawayInfo | None:
         """Where the machine passes its safe speed on light load, or None if it never does."""
-        return _per_machine(self.machine, ("runaway", self.voltage, self.safe_speed),
+        return per_machine(self.machine, ("runaway", self.voltage, self.safe_speed),
                             lambda: _runaway(self.machine, self.voltage, self.safe_speed, self.no_load))
 
     @property
@@ -194,7 +194,7 @@ def no_load_point(machine, voltage: float) -> "NoLoadPoint":
     once per machine and voltage (the same object :attr:`Characteristic.no_load` gives, without a
     sweep)."""
     voltage = float(voltage)
-    return _per_machine(machine, ("no_load", voltage), lambda: _no_load(machine, voltage))
+    return per_machine(machine, ("no_load", voltage), lambda: _no_load(machine, voltage))
 
 
 def standstill_state(machine, voltage: float) -> dict:
@@ -205,17 +205,19 @@ def standstill_state(machine, voltage: float) -> dict:
     def compute():
         st = machine.state_arrays(voltage, np.array([machine.locked_rotor_current(voltage)]))
         return {k: float(v[0]) for k, v in st.items()}
-    return _per_machine(machine, ("standstill", voltage), compute)
+    return per_machine(machine, ("standstill", voltage), compute)
 
 
-def _per_machine(machine, key, compute):
-    """A figure of an immutable machine, computed once per machine object and key (machines are
-    frozen, so the answer cannot change; many sweeps of one machine ask the same question)."""
+def per_machine(machine, key, compute):
+    """``compute()``, kept per machine object and ``key`` (machines are frozen, so the answer
+    cannot change; many studies of one machine ask the same question). The one cache of a machine's
+    figures, kernels and grids, at most 256 entries (a slider moving the voltage adds a few per
+    step), then emptied."""
     cache = machine.__dict__.setdefault("_figure_cache", {})
     try:
         return cache[key]
     except KeyError:
-        if len(cache) > 64:  # a slider moving the voltage: keep the cache small
+        if len(cache) >= 256:
             cache.clear()
         value = cache[key] = compute()
         return value
@@ -231,7 +233,7 @@ def _light_load(machine, voltage):
     def compute():
         grid = machine.locked_rotor_current(voltage) * _LIGHT
         return (grid, *machine.speed_torque_arrays(voltage, grid))
-    return _per_machine(machine, ("light load", voltage), compute)
+    return per_machine(machine, ("light load", voltage), compute)
 
 
 def _no_load(machine, voltage) -> NoLoadPoint:

@@ -26,7 +26,7 @@ import numpy as np
 
 from ..errors import ParameterError
 from . import symbolic
-from .characteristic import Characteristic
+from .characteristic import Characteristic, per_machine
 from .losses import RotationalLoss
 from .magnetics import (ArmatureReaction, Magnetization, NoArmatureReaction, _check_armature_reaction,
                         _check_magnetization)
@@ -278,13 +278,8 @@ class Machine:
 
         Used inside root finders, where a numpy call per iteration would cost ten times more.
         """
-        cache = self.__dict__.setdefault("_scalar_cache", {})
         V = float(voltage)
-        if V not in cache:
-            if len(cache) > 64:
-                cache.clear()
-            cache[V] = self._scalar_functions(V)
-        return cache[V]
+        return per_machine(self, ("scalar functions", V), lambda: self._scalar_functions(V))
 
     def _scalar_functions(self, V):
         conn = self.connection

@@ -13,6 +13,7 @@ import functools
 import numpy as np
 
 from ..models import symbolic
+from ..models.characteristic import per_machine
 
 _TINY = 1e-9  # offset of grid nodes from the two discontinuities (I_a = 0 and standstill), x I_0
 _NONE = (np.empty(0), np.empty(0), np.empty(0, bool))  # no extra nodes
@@ -143,14 +144,7 @@ class MotorGrid:
 def motor_grid(machine, voltage: float, grid: int) -> MotorGrid:
     """:class:`MotorGrid` of ``machine`` at ``voltage`` [V] on ``grid`` nodes, cached per machine
     (a machine is immutable; a new load on the same machine and supply reuses it)."""
-    cache = machine.__dict__.setdefault("_motor_grid_cache", {})
-    key = (voltage, grid)
-    g = cache.get(key)
-    if g is None:
-        if len(cache) > 64:
-            cache.clear()
-        g = cache[key] = MotorGrid(machine, voltage, grid)
-    return g
+    return per_machine(machine, ("motor grid", voltage, grid), lambda: MotorGrid(machine, voltage, grid))
 
 
 @functools.lru_cache(maxsize=64)

@@ -17,7 +17,7 @@ from ..models.cautions import DEFERENCE, GENERAL_CAUTIONS, Caution
 from ..models.units import RPM
 from ..models.validation import nonnegative, positive
 
-__all__ = ["Thresholds", "cautions_for", "BELTED_KINDS"]
+__all__ = ["Thresholds", "cautions_for", "all_cautions", "BELTED_KINDS"]
 
 #: Load kinds that are taken as belt (or chain-and-clutch) drives that can shed their load.
 BELTED_KINDS = ("belt", "belted")
@@ -159,3 +159,24 @@ def cautions_for(machine, load, result, *, thresholds: Thresholds = Thresholds()
     if out:
         out.append(Caution("defer", DEFERENCE, "", "info"))
     return out
+
+
+# load-dependent codes that already say what a machine-only caution says
+_SAME_AS = {"series_no_load": "series_light_load", "field_loss": "field_loss_runaway"}
+
+
+def all_cautions(machine, load, result, *, thresholds: Thresholds = Thresholds()) -> tuple:
+    """Every caution for ``machine`` on ``load`` at ``result`` (its :class:`OperatingResult`): the
+    load-dependent rules of :func:`cautions_for`, then the machine's own
+    (:func:`dcchar.models.cautions.characteristic_cautions`) not said already; the deference last.
+    """
+    load_rules = cautions_for(machine, load, result, thresholds=thresholds)
+    machine_rules = machine.characteristic(result.voltage, [0.0], safe_speed=result.safe_speed).cautions
+    out = [c for c in load_rules if c.code != "defer"]
+    codes = {c.code for c in out}
+    for c in machine_rules:
+        if c.code != "defer" and c.code not in codes and _SAME_AS.get(c.code) not in codes:
+            out.append(c)
+            codes.add(c.code)
+    deference = [c for c in (*load_rules, *machine_rules) if c.code == "defer"][:1]
+    return tuple(out + deference)

@@ -19,13 +19,15 @@ Examples
 from __future__ import annotations
 
 import dataclasses
+import functools
 import math
 from dataclasses import dataclass, field
 
+from ..models.characteristic import no_load_point, per_machine
 from ..models.connections import Compound, Machine, PermanentMagnet, SeparatelyExcited, Series, Shunt
 from ..models.units import RPM
 from ..models.validation import in_range, nonnegative, positive, real
-from .cautions import Thresholds, cautions_for
+from .cautions import Thresholds, all_cautions
 from .operating import operating_points, speed_regulation, starting
 
 __all__ = ["ControlSettings", "Candidate", "Comparison", "compare", "apply_settings", "working_currents",
@@ -123,11 +125,16 @@ class Candidate:
     key: str
     machine: Machine
     voltage: float
-    characteristic: object
     operating: object  # OperatingResult
     regulation: object  # SpeedRegulation or None
     starting: object  # StartingResult
     cautions: tuple
+    points: int = 300  # of the characteristic
+
+    @functools.cached_property
+    def characteristic(self):
+        """The characteristic from standstill to no load (``points`` currents), swept on first use."""
+        return self.machine.characteristic(self.voltage, points=self.points)
 
     @property
     def point(self):
@@ -155,7 +162,7 @@ class Candidate:
             "current_ratio": p.margins.current_ratio if p else nan,
             "speed_margin": p.margins.speed if p else nan,
             "starting_margin": self.operating.locked_rotor_torque - self.operating.breakaway_torque,
-            "no_load_speed": reg.no_load_speed if reg else self.characteristic.no_load_speed,
+            "no_load_speed": no_load_point(self.machine, self.voltage).speed,
             "regulation": reg.percent if reg else nan,
             "starting_current": st.armature_current,
             "starting_torque": st.torque,
@@ -228,31 +235,22 @@ def working_currents(candidate, points: int = 300, *, rated_multiple: float = 2.
     return np.linspace(lo, hi, int(points))
 
 
-# load-dependent codes that already say what a machine-only caution says
-_SAME_AS = {"series_no_load": "series_light_load", "field_loss": "field_loss_runaway"}
-
-
-def _merge_cautions(load_rules, machine_rules) -> tuple:
-    """Load-dependent cautions, then the machine's own ones not said already; the deference last."""
-    out = [c for c in load_rules if c.code != "defer"]
-    codes = {c.code for c in out}
-    for c in machine_rules:
-        if c.code != "defer" and c.code not in codes and _SAME_AS.get(c.code) not in codes:
-            out.append(c)
-            codes.add(c.code)
-    deference = [c for c in (*load_rules, *machine_rules) if c.code == "defer"][:1]
-    return tuple(out + deference)
+def _regulation(machine, V, solver):
+    """Speed regulation at the rated torque: it does not depend on the load, so it is kept per
+    machine and voltage (with the default solver)."""
+    if machine.rating is None:
+        return None
+    if solver:
+        return speed_regulation(machine, None, V, **solver)
+    return per_machine(machine, ("rated regulation", V), lambda: speed_regulation(machine, None, V))
 
 
 def _candidate(key, machine, load, settings, thresholds, points, solver):
     V = machine.default_voltage() if settings.voltage is None else real("voltage", settings.voltage)
-    ch = machine.characteristic(V, points=points)
     op = operating_points(machine, load, V, **solver)
-    reg = speed_regulation(machine, None, V, **solver) if machine.rating is not None else None
-    st = starting(machine, V)
-    cautions = _merge_cautions(cautions_for(machine, load, op, thresholds=thresholds), ch.cautions)
-    return Candidate(key=key, machine=machine, voltage=V, characteristic=ch, operating=op, regulation=reg,
-                     starting=st, cautions=cautions)
+    return Candidate(key=key, machine=machine, voltage=V, operating=op, regulation=_regulation(machine, V, solver),
+                     starting=starting(machine, V), cautions=all_cautions(machine, load, op, thresholds=thresholds),
+                     points=points)
 
 
 def compare(machines, load, settings: ControlSettings | None = None, *, thresholds: Thresholds | None = None,

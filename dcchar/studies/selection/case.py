@@ -8,7 +8,6 @@ requirements runs each study once per candidate.
 from __future__ import annotations
 
 import functools
-import math
 from dataclasses import dataclass, field
 
 from ...errors import ParameterError
@@ -46,8 +45,6 @@ class SelectionSettings:
 
     def __post_init__(self):
         if not isinstance(self.control, ControlSettings):
-            from ...errors import ParameterError
-
             raise ParameterError("control", self.control, "a ControlSettings")
         if self.starter_multiple is not None:
             in_range("starter_multiple", self.starter_multiple, 0.0, 100.0, low_open=True)
@@ -68,7 +65,6 @@ class Case:
 
     def __init__(self, key, machine, load, settings: SelectionSettings):
         self.key = key
-        self.nominal_machine = machine
         self.machine = apply_settings(machine, settings.control)
         self.load = load
         self.settings = settings
@@ -84,14 +80,7 @@ class Case:
 
     @functools.cached_property
     def no_load_speed(self) -> float:
-        """No-load speed of the running machine [rad/s] (inf: unbounded): taken from the speed
-        regulation study when the machine is rated (it finds the same no-load point), else from
-        the characteristic."""
-        if self.machine.rating is not None:
-            try:
-                return float(self.regulation().no_load_speed)
-            except ParameterError:  # no full-load point: fall back to the sweep
-                pass
+        """No-load speed of the running machine [rad/s] (inf: unbounded)."""
         return float(no_load_point(self.machine, self.voltage).speed)
 
     @functools.cached_property
@@ -176,8 +165,3 @@ class Case:
         if conn in ("shunt", "long_shunt_compound", "short_shunt_compound"):
             return m.with_(field_rheostat=OPEN_FIELD_RESISTANCE)
         return None
-
-
-def finite_or(value, default=math.nan) -> float:
-    v = float(value)
-    return v if math.isfinite(v) else default

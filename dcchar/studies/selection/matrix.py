@@ -4,7 +4,7 @@
 default), the studies each requirement names, takes the figure from the study result, holds it
 against the required value and gives a verdict (pass, marginal or fail) with a one-line reason.
 Then it ranks the candidates (:mod:`dcchar.studies.selection.ranking`) and collects the
-cautions that come with the leading candidate (:func:`dcchar.studies.cautions.cautions_for`).
+cautions that come with the leading candidate (:func:`dcchar.studies.cautions.all_cautions`).
 
 Examples
 --------
@@ -27,7 +27,7 @@ from dataclasses import dataclass
 
 from ...errors import ParameterError
 
-from ..cautions import cautions_for
+from ..cautions import all_cautions
 from .case import Case, SelectionSettings
 from .defaults import Requirements
 from .ranking import RANKING_RULE, Ranking, rank
@@ -284,7 +284,7 @@ def selection_matrix(candidates, load, requirements, settings: SelectionSettings
     ranking = rank(list(cases), {k: c.machine.label for k, c in cases.items()}, verdicts, titles, effs)
     first = ranking.leader or ranking.entries[0].key
     c = cases[first]
-    cautions = tuple(cautions_for(c.machine, load, c.operating))
+    cautions = all_cautions(c.machine, load, c.operating)
     return SelectionMatrix(cases, load, reqs, settings, cells, ranking, cautions)
 
 
