@@ -126,3 +126,33 @@ def test_chain_closes_on_the_loop(n, i1, a, b):
     assert d.total_resistance[-1] == m.loop_resistance()
     assert np.all(np.diff(d.total_resistance) < 0)
     assert np.all(np.diff(d.cutout_speed) > 0) and 0 < d.min_current < i1
+
+
+def test_stepped_starter_follows_the_flux_of_each_connection():
+    # With a series field the flux rises with the current, so the steps are not in geometric
+    # progression (Theraja, Electrical Technology, vol. II, series-motor starter, from memory,
+    # unverified): the series design keeps every stud peak near I1, the constant-flux design
+    # lets it fall stud by stud. Constant-flux connections keep the geometric design.
+    from dcchar.models.loads import Fan
+    from dcchar.studies.demo import DEMO_RATING, demo_family
+    from dcchar.studies.series_starter import stepped_starter
+    from dcchar.studies.starter_steps import starter_steps
+
+    fam = demo_family()
+    load = Fan(rated_speed=DEMO_RATING.speed, rated_torque=0.9 * DEMO_RATING.torque, load_inertia=0.5)
+    for key in ("series", "long_shunt_compound", "short_shunt_compound"):
+        m = fam[key]
+        i1 = 2.0 * m.rating.current
+        d = stepped_starter(m, i1, sections=4)
+        ref = series_starter_steps(m, i1, sections=4, rated_current=m.rating.current)
+        assert np.array_equal(d.total_resistance, ref.total_resistance)
+        peaks = simulate_start(m, load, DEMO_RATING.voltage, starter=d).stud_peak_currents
+        geometric = starter_steps(DEMO_RATING.voltage, m.loop_resistance(), i1, sections=4, brush_drop=m.brush_drop,
+                                  rated_current=m.rating.current)
+        flat = simulate_start(m, load, DEMO_RATING.voltage, starter=geometric).stud_peak_currents
+        assert min(peaks) > 0.85 * i1 and min(peaks) > min(flat) + 0.1 * i1
+    m = fam["shunt"]
+    d = stepped_starter(m, 2.0 * m.rating.current, sections=4)
+    ref = starter_steps(DEMO_RATING.voltage, m.loop_resistance(), 2.0 * m.rating.current, sections=4,
+                        brush_drop=m.brush_drop, rated_current=m.rating.current)
+    assert np.array_equal(d.total_resistance, ref.total_resistance)

@@ -307,7 +307,7 @@ def test_comparer_hosts_panels_and_use_adds_candidate():
 def test_start_panel_shows_the_simulated_starts(family, hoist):
     from dcchar.studies.comparison import apply_settings
     from dcchar.studies.duty_machine import MachineSegment, duty_summary
-    from dcchar.studies.starter_steps import starter_steps
+    from dcchar.studies.series_starter import stepped_starter
     from dcchar.studies.transients import simulate_start
     from dcchar.widgets.start_panel import StartPanel
 
@@ -319,8 +319,7 @@ def test_start_panel_shows_the_simulated_starts(family, hoist):
     assert panel.last_error is None and not panel.stale
     for key, m0 in few.items():
         m = apply_settings(m0, settings)
-        design = starter_steps(210.0, m.loop_resistance(), 2.0 * m.rating.current, sections=3,
-                               brush_drop=m.brush_drop, rated_current=m.rating.current)
+        design = stepped_starter(m, 2.0 * m.rating.current, sections=3, voltage=210.0)
         tr = simulate_start(m, hoist, 210.0, starter=design, holding_brake=True)
         assert panel.transients[key].peak_current == tr.peak_current
         row = re.search(rf'<tr data-key="{key}">.*?</tr>', panel.start_table.value, re.S).group(0)
@@ -338,6 +337,21 @@ def test_start_panel_shows_the_simulated_starts(family, hoist):
         assert [ln.get_xdata()[0] for ln in panel.chart["switches"][key]] == list(tr.switch_times)
     assert bytes(panel.image.value).startswith(PNG)
     assert "kit-start" in panel.start_table._dom_classes and "kit-duty" in panel.duty_table._dom_classes
+
+
+def test_start_panel_brake_follows_the_kind_of_load(family, hoist):
+    # a hoist is started against a holding brake (common practice, no source): ticked for a hoist,
+    # including the panel's own default load, and reset when the kind of load changes
+    from dcchar.models.loads import Fan
+    from dcchar.widgets.start_panel import StartPanel
+
+    assert StartPanel({"shunt": family["shunt"]}).brake.value
+    panel = StartPanel({"shunt": family["shunt"]}, hoist)
+    assert panel.brake.value
+    panel.update(load=Fan(rated_speed=100.0, rated_torque=50.0))
+    assert not panel.brake.value
+    panel.update(load=hoist)
+    assert panel.brake.value
 
 
 def test_start_panel_export_and_stale(family, hoist, tmp_path):

@@ -22,7 +22,30 @@ from ..errors import ParameterError, SolverError
 from ..models.validation import positive
 from .starter_steps import StarterDesign, _GENERAL_CAUTION, _limit_notes
 
-__all__ = ["series_starter_steps"]
+__all__ = ["series_starter_steps", "stepped_starter"]
+
+
+#: Connections whose flux follows the armature current through a series field.
+SERIES_FIELD = ("series", "long_shunt_compound", "short_shunt_compound")
+
+
+def stepped_starter(machine, max_current, *, sections, voltage=None) -> StarterDesign:
+    """The stepped starter of ``machine`` with peak ``max_current`` [A] on every stud and
+    ``sections`` sections, at supply ``voltage`` [V] (default: the rated voltage).
+
+    Where a series field carries the armature current (series and compound connections) the flux
+    rises with the current and the steps come from the characteristic
+    (:func:`series_starter_steps`); otherwise the flux is taken as constant and the steps are in
+    geometric progression (:func:`dcchar.studies.starter_steps.starter_steps`).
+    """
+    from .starter_steps import starter_steps
+
+    V = machine.default_voltage() if voltage is None else positive("voltage", voltage)
+    rated = machine.rating.current if machine.rating is not None else None
+    if machine.connection in SERIES_FIELD:
+        return series_starter_steps(machine, max_current, voltage=V, sections=sections, rated_current=rated)
+    return starter_steps(V, machine.loop_resistance(), max_current, sections=sections,
+                         brush_drop=machine.brush_drop, rated_current=rated)
 
 
 def _speed_at(machine, voltage, current, total):

@@ -89,7 +89,7 @@ class StartPanel:
                                          style=st, layout=lay)
         self.limit = w.BoundedFloatText(value=limit, min=1.05, max=10.0, step=0.1,
                                         description="peak current [× rated]", style=st, layout=lay)
-        self.brake = w.Checkbox(value=getattr(load, "kind", "") == "hoist", indent=False,
+        self.brake = w.Checkbox(value=getattr(self.load, "kind", "") == "hoist", indent=False,
                                 description="holding brake until the motor takes the load")
         self.run_time = w.BoundedFloatText(value=run_time, min=0.0, max=1e5, description="running time [s]",
                                            style=st, layout=lay)
@@ -127,15 +127,14 @@ class StartPanel:
 
     # ------------------------------------------------------------------ studies
     def starter_for(self, machine):
-        """The stepped starter of one machine: peak ``limit`` x rated current on every stud."""
-        from ..studies.starter_steps import starter_steps
+        """The stepped starter of one machine: peak ``limit`` x rated current on every stud (see
+        :func:`dcchar.studies.series_starter.stepped_starter`)."""
+        from ..studies.series_starter import stepped_starter
 
         if machine.rating is None:
             raise ParameterError("machine.rating", None, f"a rating for {machine.label} (the starter is set from it)")
-        voltage = self.settings.voltage if self.settings.voltage is not None else machine.rating.voltage
-        return starter_steps(voltage, machine.loop_resistance(), float(self.limit.value) * machine.rating.current,
-                             sections=int(self.sections.value), brush_drop=machine.brush_drop,
-                             rated_current=machine.rating.current)
+        return stepped_starter(machine, float(self.limit.value) * machine.rating.current,
+                               sections=int(self.sections.value), voltage=self.settings.voltage)
 
     def compute(self):
         """(starters, transients, duties), key -> result, for the current machines and inputs."""
@@ -147,8 +146,8 @@ class StartPanel:
         starters, transients, duties = {}, {}, {}
         for key, m0 in self.machines.items():
             m = apply_settings(m0, self.settings)
-            voltage = self.settings.voltage if self.settings.voltage is not None else m.rating.voltage
             design = self.starter_for(m)
+            voltage = m.default_voltage() if self.settings.voltage is None else self.settings.voltage
             tr = simulate_start(m, self.load, voltage, starter=design if design.needed else None,
                                 holding_brake=bool(self.brake.value))
             segments = [MachineSegment(kind="start", transient=tr, label="start")]
@@ -192,6 +191,8 @@ class StartPanel:
         if machines is not None:
             self.machines = dict(machines)
         if load is not None:
+            if getattr(load, "kind", "") != getattr(self.load, "kind", ""):  # a new kind of load: its default
+                self.brake.value = getattr(load, "kind", "") == "hoist"
             self.load = load
         if settings is not None:
             self.settings = settings
