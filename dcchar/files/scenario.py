@@ -71,9 +71,9 @@ def _deep(path: str, exc: DcCharError, names: dict | None = None) -> ScenarioErr
         if key is not None and key != head and (names or {}).get(fld) is None:
             key = f"{key}.{rest}" if rest else key
         where = f"{path}.{key or fld}" if path else (key or fld)
-        from .scenario_schema import describe_value
+        from .scenario_schema import bad
 
-        return ScenarioError(where, f"{describe_value(exc.value)} is not allowed: expected {exc.allowed}")
+        return bad(where, exc.value, exc.allowed)
     return ScenarioError(path, str(exc))
 
 

@@ -21,13 +21,9 @@ for _a in _NONE:
     _a.flags.writeable = False
 
 
-#: Names of circuit values that a study may replace by arrays (see :class:`_Evaluator`).
-_OVERRIDABLE = ("R_x", "R_f", "d", "V_f")
-
-
 class _Evaluator:
-    """Speed and shaft torque of one machine on arrays, with the supply voltage and some circuit
-    values (R_x, R_f, d, V_f; see :data:`dcchar.models.symbolic.CIRCUIT_PARAMETERS`) given as
+    """Speed and shaft torque of one machine on arrays, with the supply voltage and any circuit
+    values (by name, e.g. R_x, R_f, d, V_f; see :data:`dcchar.models.symbolic.CIRCUIT_PARAMETERS`) given as
     arrays that broadcast against the armature current (settings down, currents across)."""
 
     def __init__(self, machine, voltage, overrides=None, circuit=None):
