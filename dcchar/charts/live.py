@@ -196,7 +196,7 @@ class LiveChart:
         """The visible operating-point labels (Annotation), in drawing order."""
         return [a for a in self._annotations if a.get_visible()]
 
-    def update(self, characteristics, load=None, operating=None) -> str:
+    def update(self, characteristics, load=None, operating=None, *, refit: bool = False) -> str:
         """Show new results: change line data, markers and texts, then redraw.
 
         Parameters
@@ -205,6 +205,9 @@ class LiveChart:
         load : object with ``torque(speed)`` and ``describe()``, optional
         operating : operating result or list of them, optional
             As for :func:`dcchar.charts.curves.draw_view`.
+        refit : bool, default False
+            Fit the axes to these results (a full draw); otherwise the axes only grow, so that a
+            dragged slider never makes the chart jump.
 
         Returns
         -------
@@ -214,8 +217,8 @@ class LiveChart:
         chars = as_list(characteristics)
         pairs = pair_operating(chars, operating)
         self._state = (chars, load, operating)
-        full = self._apply(chars, load, pairs, force_limits=False)
-        return self._render(full)
+        full = self._apply(chars, load, pairs, force_limits=refit)
+        return self._render(full or refit)
 
     def set_view(self, name: str) -> str:
         """Switch to another view (see :data:`VIEWS`); redraws fully with the last results."""

@@ -603,14 +603,12 @@ class Comparer:
             comp = compare(machines, load, settings, thresholds=self.thresholds)
             t1 = time.perf_counter()
             chars, ops, hidden = self.chart_data(comp)
-            self.chart.update(chars, load=comp.load, operating=ops)
             # a new kind of load or another set of connections: fit the axes to it (a slider
             # only ever grows them, so that dragging never makes the chart jump)
             signature = (type(load), tuple(machines))
-            if signature != self._chart_signature:
-                if self._chart_signature is not None:
-                    self.chart.rescale()
-                self._chart_signature = signature
+            refit = self._chart_signature is not None and signature != self._chart_signature
+            self._chart_signature = signature
+            self.chart.update(chars, load=comp.load, operating=ops, refit=refit)
         t2 = time.perf_counter()
         self.comparison = comp
         self.last_error = None
