@@ -536,6 +536,21 @@ def _buffer(fig):
     return np.asarray(fig.canvas.buffer_rgba()).copy()
 
 
+def test_live_chart_spaces_markers_for_the_axes_as_laid_out():
+    # the marker spacing is by arc length on screen, so it is worked out again once the layout
+    # engine has sized the axes on the first draw (reference: arc_markevery itself)
+    from dcchar.charts.labels import arc_markevery
+
+    chart = charts.LiveChart()
+    chart.update(CURVES, LOAD, _results())
+    chart.figure.canvas.draw()
+    keys = [style.style_key(m) for m in MACHINES]
+    for k, key in enumerate(keys):
+        line = chart.lines[key]
+        expected = arc_markevery(chart.axes, line.get_xdata(), line.get_ydata(), phase=(k + 0.5) / len(keys))
+        assert list(line.get_markevery()) == list(expected)
+
+
 def test_live_chart_data_and_blit_equals_full_draw():
     chart = charts.LiveChart()
     assert chart.can_blit

@@ -146,6 +146,7 @@ class LiveChart:
         self._band_state = None
         self._label_args = {}
         self._placed_for = None
+        self._curve_keys = []  # slots of the curves drawn, in order
         self._placed = None  # what the label boxes were last placed for
         self._glyphs = GlyphCache()
         self._styled = {}  # style last given to each slot
@@ -298,6 +299,13 @@ class LiveChart:
             _keep_layout(a)
             self._annotations.append(a)
         return self._annotations[i]
+
+    def _space_markers(self):
+        """Markers along the visible curves, spaced by arc length on screen, staggered from curve to curve."""
+        shown = [self.lines[k] for k in self._curve_keys]
+        for k, line in enumerate(shown):
+            line.set_markevery(arc_markevery(self.axes, line.get_xdata(), line.get_ydata(),
+                                             phase=(k + 0.5) / len(shown)))
 
     def _geometry(self):
         ax = self.axes
@@ -469,10 +477,8 @@ class LiveChart:
                     m.set_visible(False)
                     m.set_data([], [])
         band_top = safe if (safe is not None and safe < ylim[1]) else None
-        # markers along the curves, spaced by arc length on screen, staggered from curve to curve
-        shown = [self.lines[k] for k in keys]
-        for k, line in enumerate(shown):
-            line.set_markevery(arc_markevery(ax, line.get_xdata(), line.get_ydata(), phase=(k + 0.5) / len(shown)))
+        self._curve_keys = list(keys)
+        self._space_markers()
         groups = label_groups(ax, entries)
         for i, ((x, y), text) in enumerate(groups):
             a = self._annotation(i)
@@ -481,7 +487,7 @@ class LiveChart:
             a.set_visible(True)
         for a in self._annotations[len(groups):]:
             a.set_visible(False)
-        self._label_args = dict(top=band_top, lines=shown + [self.load_line],
+        self._label_args = dict(top=band_top, lines=[self.lines[k] for k in keys] + [self.load_line],
                                 markers=[(e[0], e[1]) for e in entries])
         self._place_labels()
 
@@ -535,7 +541,8 @@ class LiveChart:
         if not any(a.get_animated() for a in self._moving()):
             self._pending_full = False
             return
-        if self._placed_for != self._geometry():  # the layout engine moved the axes: place the labels again
+        if self._placed_for != self._geometry():  # the layout engine moved the axes: space and place again
+            self._space_markers()
             self._place_labels()
         renderer = getattr(event, "renderer", None) or canvas.get_renderer()
         if hasattr(canvas, "copy_from_bbox"):
