@@ -7,7 +7,7 @@ explicit artist properties and a local ``rc_context`` (:func:`chart_style`).
 
 from .curves import (VIEWS, current_torque_chart, draw_view, efficiency_power_chart, efficiency_torque_chart,
                      speed_current_chart, torque_speed_chart)
-from .export import EXPORT_FORMATS, clipped_texts, freeze_layout, overlapping_texts, save_figure
+from .export import EXPORT_FORMATS, clipped_texts, export_figure, freeze_layout, overlapping_texts, save_figure
 from .live import LiveChart
 from .style import (COLUMN_MM, CONNECTION_STYLES, DOUBLE_COLUMN_MM, chart_style, figure_size_mm, new_figure,
                     short_name, style_for, style_key, title_block)

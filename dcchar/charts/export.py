@@ -20,7 +20,7 @@ from pathlib import Path
 from ..errors import ParameterError
 from ..models.validation import positive
 
-__all__ = ["save_figure", "clipped_texts", "overlapping_texts", "freeze_layout", "EXPORT_FORMATS"]
+__all__ = ["save_figure", "export_figure", "clipped_texts", "overlapping_texts", "freeze_layout", "EXPORT_FORMATS"]
 
 #: Formats :func:`save_figure` writes.
 EXPORT_FORMATS = ("png", "svg", "pdf")
@@ -240,3 +240,29 @@ def clipped_texts(fig, tolerance_px: float = 0.5, draw: bool = True) -> list:
                 or bb.y1 > box.y1 + tolerance_px):
             bad.append(artist)
     return bad
+
+
+def _words(artist) -> str:
+    get = getattr(artist, "get_text", None)
+    return " ".join(str(get()).split()) if get is not None else type(artist).__name__
+
+
+def export_figure(fig, path_stem, formats=("png", "svg"), dpi: float = 300) -> tuple:
+    """Lay ``fig`` out at the resolution it is saved at, once (:func:`freeze_layout`), check it
+    and save it (:func:`save_figure`). Call it after the last change to the figure (title block
+    included).
+
+    Text measured at the screen's 100 dpi comes out wider at 300 dpi, so the layout is made at
+    ``dpi``; each format then draws the figure once.
+
+    Returns
+    -------
+    (list of pathlib.Path, list of str)
+        The files written, and the problems found: texts reaching outside the figure, then
+        ``"overlap: a | b"`` for texts that overlap.
+    """
+    fig.set_dpi(dpi)
+    freeze_layout(fig)
+    problems = [_words(a) for a in clipped_texts(fig, draw=False)]
+    problems += [f"overlap: {_words(a)} | {_words(b)}" for a, b in overlapping_texts(fig, draw=False)]
+    return save_figure(fig, path_stem, formats=formats, dpi=dpi), problems

@@ -171,11 +171,6 @@ def report_curves(comparison, points: int = 300) -> list:
             for c in comparison.candidates.values()]
 
 
-def _text_of(artist) -> str:
-    get = getattr(artist, "get_text", None)
-    return " ".join(str(get()).split()) if get is not None else type(artist).__name__
-
-
 def _figures(scenario, load_name, comparison, curves, folder: Path, units, progress, files, clipped):
     from .. import __version__, charts
 
@@ -186,13 +181,10 @@ def _figures(scenario, load_name, comparison, curves, folder: Path, units, progr
         out = charts.draw_view(view, curves, load, ops, units=units)
         fig = out["figure"]
         charts.title_block(fig, title, f"{scenario.name} · {load_name}", scenario.date, __version__)
-        # lay the figure out once and keep that layout, so that each format draws it once
-        charts.freeze_layout(fig)
-        bad = [str(getattr(a, "get_text", lambda: a)()) for a in charts.clipped_texts(fig, draw=False)]
-        bad += [f"overlap: {_text_of(a)} | {_text_of(b)}" for a, b in charts.overlapping_texts(fig, draw=False)]
+        written, bad = charts.export_figure(fig, folder / view, formats=("png", "svg"), dpi=_DPI)
         if bad:
             clipped[f"{load_name}/{view}"] = bad
-        files.extend(charts.save_figure(fig, folder / view, formats=("png", "svg"), dpi=_DPI))
+        files.extend(written)
         progress(f"{load_name}/{view}.png, .svg")
 
 

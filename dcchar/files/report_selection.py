@@ -167,23 +167,12 @@ def _choice_figures(scenario, section, folder, units, step, files, clipped):
             out = band_chart(tol.bands, units=units)
             title = textwrap.fill(scenario.title, _TITLE_WIDTH)
         fig = out["figure"]
-        # lay the figure out at the resolution it is saved at: text measured at the screen's
-        # 100 dpi comes out wider at 300 dpi, and labels flush with the edge would be cut
-        fig.set_dpi(_DPI)
         charts.title_block(fig, title, f"{scenario.name} · {section.load}", scenario.date, __version__)
-        # lay the figure out once and keep that layout, so that each format draws it once
-        charts.freeze_layout(fig)
-        bad = [_words(a) for a in charts.clipped_texts(fig, draw=False)]
-        bad += [f"overlap: {_words(a)} | {_words(b)}" for a, b in charts.overlapping_texts(fig, draw=False)]
+        written, bad = charts.export_figure(fig, folder / stem, formats=("png", "svg"), dpi=_DPI)
         if bad:
             clipped[f"{section.load}/{stem}"] = bad
-        files.extend(charts.save_figure(fig, folder / stem, formats=("png", "svg"), dpi=_DPI))
+        files.extend(written)
         step(f"{section.load}/{stem}.png, .svg")
-
-
-def _words(artist) -> str:
-    get = getattr(artist, "get_text", None)
-    return " ".join(str(get()).split()) if get is not None else type(artist).__name__
 
 
 def figure_steps(section_has_tolerance: bool) -> int:

@@ -520,7 +520,7 @@ class Comparer:
         block) and the results table (CSV) into ``folder`` (default: the folder box), created if
         missing. Returns the paths written and reports them in the status line."""
         from ..charts.curves import draw_view
-        from ..charts.export import save_figure
+        from ..charts.export import export_figure
         from ..charts.style import title_block
         from ..files.tables import write_table_csv
 
@@ -539,7 +539,7 @@ class Comparer:
             chars, ops, _ = self.chart_data(comp)
             art = draw_view(view, chars, comp.load, ops, units=units)
         title_block(art["figure"], self.title or "Field connections compared", self._scenario_line(comp))
-        written = list(save_figure(art["figure"], out / stem, formats=("png", "svg"), dpi=300))
+        written = list(export_figure(art["figure"], out / stem, formats=("png", "svg"), dpi=300)[0])
         written.append(Path(write_table_csv(comp, out / f"{stem}-table.csv", units=units)))
         self.status_line.value = status_html("wrote " + ", ".join(p.name for p in written) + f" to {out}")
         return written
