@@ -33,7 +33,7 @@ from dcchar.models.formula import parse_formula  # noqa: E402
 from dcchar.files.tables import display_table, format_value, table_csv  # noqa: E402
 from dcchar.models.loads import ConstantTorque, Fan, FormulaLoad, Gearing, Hoist, TableLoad  # noqa: E402
 from dcchar.models.units import LBF_FT, POUND, RPM  # noqa: E402
-from dcchar.studies.comparison import TABLE_COLUMNS, ControlSettings, compare  # noqa: E402
+from dcchar.studies.comparison import TABLE_COLUMNS, ControlSettings, compare, working_currents  # noqa: E402
 from dcchar.studies.demo import DEMO_RATING, demo_armature, demo_family, demo_magnetization  # noqa: E402
 from dcchar.studies.rating import DEFAULT_CONNECTIONS, equal_rating_family  # noqa: E402
 from dcchar.widgets import Comparer  # noqa: E402
@@ -103,7 +103,7 @@ def assert_shows(comparer, expected, units="si"):
     # as view_xy puts it on the view, and the settled operating point is marked on it
     view = comparer.chart.view
     for cand in expected.candidates.values():
-        currents = comparer.chart_currents(cand)
+        currents = working_currents(cand)
         rated = cand.machine.rating.current
         assert currents[0] <= 0.0 and currents[-1] >= min(2.0 * rated, cand.characteristic.locked_rotor_current)
         c = cand.machine.characteristic(cand.voltage, current=currents)

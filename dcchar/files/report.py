@@ -43,7 +43,6 @@ from ..errors import ScenarioError
 from ..models.cautions import DEFERENCE, GENERAL_CAUTIONS
 from ..models.units import display_units
 from ..models.validation import choice
-from ..studies.comparison import working_currents
 from .atomic import atomic_write_text
 from .tables import display_table, format_value, table_csv, table_html, table_markdown, write_table_csv
 
@@ -166,9 +165,7 @@ def report_curves(comparison, points: int = 300) -> list:
     up to 2.5 x the rated current, widened to every operating point, those beyond standstill
     included (see :func:`dcchar.studies.comparison.working_currents`). [A]
     """
-    return [c.machine.characteristic(c.voltage, working_currents(c, points, rated_multiple=2.5,
-                                                                 every_point=True))
-            for c in comparison.candidates.values()]
+    return [c.working_characteristic(points, rated_multiple=2.5, every_point=True) for c in comparison.candidates.values()]
 
 
 def _figures(scenario, load_name, comparison, curves, folder: Path, units, progress, files, clipped):

@@ -136,6 +136,12 @@ class Candidate:
         """The characteristic from standstill to no load (``points`` currents), swept on first use."""
         return self.machine.characteristic(self.voltage, points=self.points)
 
+    def working_characteristic(self, points: int = 300, *, rated_multiple: float = 2.0, every_point: bool = False):
+        """The characteristic over the working range (:func:`working_currents`), for the curves
+        people read."""
+        currents = working_currents(self, points, rated_multiple=rated_multiple, every_point=every_point)
+        return self.machine.characteristic(self.voltage, current=currents)
+
     @property
     def point(self):
         """The operating point the drive settles at when started from rest, or None."""

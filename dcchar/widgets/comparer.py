@@ -38,7 +38,7 @@ import ipywidgets as w
 from ..charts.live import LiveChart
 from ..charts.style import styles_for
 from ..errors import ParameterError
-from ..studies.comparison import ControlSettings, compare, working_currents
+from ..studies.comparison import ControlSettings, compare
 from .controls import Coalescer, _running_loop, chart_canvas_class, from_front_end, labelled_slider
 from .load_editor import LoadEditor
 from .panels import cautions_html, error_html, results_html, status_html, swatch_html
@@ -628,23 +628,17 @@ class Comparer:
         self._update_panels(machines, load, settings)
 
     # ------------------------------------------------------------------ chart data
-    @staticmethod
-    def chart_currents(candidate, points: int = 300):
-        """Armature currents [A] the chart sweeps for one candidate: the working range, up to twice
-        the rated current (see :func:`dcchar.studies.comparison.working_currents`)."""
-        return working_currents(candidate, points)
-
     def chart_data(self, comparison):
         """(characteristics, operating results, hidden) as drawn: each candidate's characteristic
-        over :meth:`chart_currents`, its operating points within that range, and a list naming
-        the points left out."""
+        over its working range (:meth:`Candidate.working_characteristic`), its operating points
+        within that range, and a list naming the points left out."""
         import dataclasses
 
         chars, ops, hidden = [], [], []
         for cand in comparison.candidates.values():
-            currents = self.chart_currents(cand)
-            chars.append(cand.machine.characteristic(cand.voltage, current=currents))
-            lo, hi = currents[0], currents[-1]
+            c = cand.working_characteristic()
+            chars.append(c)
+            lo, hi = c.armature_current[0], c.armature_current[-1]
             op = cand.operating
             keep = tuple(p for p in op.points if lo <= p.armature_current <= hi)
             for p in op.points:
