@@ -104,3 +104,20 @@ def test_bad_segments():
         S(None, ConstantTorque(1.0))
     with pytest.raises(ParameterError, match="segments"):
         duty_summary(_pm(), [], voltage=V)
+
+
+def test_braking_and_duty_count_energy_exchanged_alike():
+    # one transient, one account of the energy drawn and returned, wherever it is reported
+    # (reference: the solver's own energy integrals, EnergyTerms)
+    from dcchar.studies.braking import regenerative_braking
+    from dcchar.studies.duty_machine import _transient_values
+
+    m = demo_family()["separately_excited"]
+    for br in (dynamic_braking(m, resistance=2.0), regenerative_braking(m, ramp_time=2.0)):
+        tr = br.transient
+        drawn, returned = tr.energy_exchanged
+        values, _ = _transient_values(m, S(kind="brake", transient=br))
+        assert (values["drawn"], values["returned"]) == (drawn, returned) == (br.energy_drawn, br.energy_returned)
+        e = tr.energy
+        assert drawn >= 0.0 and returned >= 0.0
+        assert drawn - returned == pytest.approx(e.supply + e.field_supply, rel=1e-3, abs=1e-3 * e.losses)

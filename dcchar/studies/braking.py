@@ -163,16 +163,9 @@ def _duration(machine, load, voltage, i0, resistance, duration):
 
 def _pack(method, machine, load, tr, w0, i0, stop_speed, notes, resistor=True):
     e = tr.energy
-    p = tr.supply_power
-    if np.all(p >= 0):  # one direction of flow: the solver's exact integral
-        drawn, returned = e.supply + e.field_supply, 0.0
-    elif np.all(p <= 0):
-        drawn, returned = e.field_supply, -e.supply
-    else:  # split at the sign changes by the trapezoidal rule on the output points
-        returned = float(np.trapezoid(np.where(p < 0, -p, 0.0), tr.time))
-        drawn = float(np.trapezoid(np.where(p > 0, p, 0.0), tr.time)) + e.field_supply
+    drawn, returned = tr.energy_exchanged
     stop = tr.stopped_time if math.isfinite(tr.stopped_time) else math.inf
-    machine_losses = e.armature_copper + e.series_field_copper + e.field_copper + e.brush + e.rotational
+    machine_losses = e.machine_losses
     extra = []
     if load is not None and getattr(load, "kind", "") == "hoist":
         extra.append(_HOIST)

@@ -273,14 +273,13 @@ def _transient_values(machine, seg):
     e = tr.energy
     d = tr.duration
     i_rms, t_rms = tr.rms("armature_current"), tr.rms("torque")
-    loss = (e.armature_copper + e.series_field_copper + e.field_copper + e.brush + e.rotational) / d
+    loss = e.machine_losses / d
     sign_i = 1.0 if tr.mean("armature_current") >= 0 else -1.0
     sign_t = 1.0 if tr.mean("torque") >= 0 else -1.0
+    drawn, returned = tr.energy_exchanged
     return dict(torque=sign_t * t_rms, current=sign_i * i_rms, power=(e.supply + e.field_supply) / d,
                 speed=(float(tr.speed[0]), float(tr.speed[-1])), losses=loss, peak_i=tr.peak_current,
-                peak_t=tr.peak_torque, drawn=float(np.trapezoid(np.clip(tr.supply_power, 0, None), tr.time))
-                + e.field_supply, returned=float(np.trapezoid(np.clip(-tr.supply_power, 0, None), tr.time)),
-                duration=d), ""
+                peak_t=tr.peak_torque, drawn=drawn, returned=returned, duration=d), ""
 
 
 def duty_summary(machine, segments, *, voltage=None, periodic=True, thermal=None, rest_weight=1.0,

@@ -90,6 +90,12 @@ class EnergyTerms:
                 + self.brush + self.rotational)
 
     @property
+    def machine_losses(self) -> float:
+        """The losses inside the machine: copper of its windings, brush and rotational (no
+        external resistor). [J]"""
+        return self.armature_copper + self.series_field_copper + self.field_copper + self.brush + self.rotational
+
+    @property
     def residual(self) -> float:
         """Input minus every use of energy; zero to the solver's tolerance. [J]"""
         return (self.supply + self.field_supply - self.kinetic_change - self.magnetic_change - self.losses
@@ -192,6 +198,19 @@ class Transient:
         from ..models.units import RPM
 
         return self.speed / RPM
+
+    @property
+    def energy_exchanged(self) -> tuple:
+        """(drawn from the supplies, returned to the supply) over the run [J], both >= 0: the
+        solver's exact integrals where the armature supply power keeps one sign, else split at its
+        sign changes by the trapezoidal rule on the output points (the field supply only draws)."""
+        e, p = self.energy, self.supply_power
+        if np.all(p >= 0):
+            return e.supply + e.field_supply, 0.0
+        if np.all(p <= 0):
+            return e.field_supply, -e.supply
+        returned = float(np.trapezoid(np.where(p < 0, -p, 0.0), self.time))
+        return float(np.trapezoid(np.where(p > 0, p, 0.0), self.time)) + e.field_supply, returned
 
     def rms(self, name: str = "armature_current") -> float:
         """Root-mean-square of an array over time (trapezoidal rule on the output points). [unit]"""
