@@ -65,19 +65,24 @@ def _demo_spec() -> dict:
                 connections=DEFAULT_CONNECTIONS, series_share=0.3, name="demo frame")
 
 
+def _free_key(machine, taken) -> str:
+    """The machine's connection name as a key, numbered when ``taken`` has it already."""
+    from ..charts.style import style_key
+
+    base = key = style_key(machine).replace("/", "_")
+    n = 1
+    while key in taken:
+        n += 1
+        key = f"{base}_{n}"
+    return key
+
+
 def _as_dict(machines) -> dict:
     if hasattr(machines, "items"):
         return dict(machines.items())
-    from ..charts.style import style_key
-
     out = {}
     for m in machines:
-        key = style_key(m).replace("/", "_")
-        base, n = key, 1
-        while key in out:
-            n += 1
-            key = f"{base}_{n}"
-        out[key] = m
+        out[_free_key(m, out)] = m
     return out
 
 
@@ -181,14 +186,7 @@ class Comparer:
         self.candidates = {}
         rows = []
         for key, m in self._base.items():
-            cb = w.Checkbox(value=True, description=m.label, indent=False, layout=w.Layout(width="auto"))
-            cb.add_class("kit-candidate")
-            cb.add_class("kit-candidate-" + key.replace("_", "-"))
-            cb.observe(self._on_control, names="value")
-            self.candidates[key] = cb
-            s = styles[key]
-            rows.append(w.HBox([w.HTML(swatch_html(s.color, s.linestyle), layout=w.Layout(width="30px")), cb],
-                               layout=w.Layout(height="24px")))
+            rows.append(self._candidate_row(key, m, styles[key]))
         self._candidate_box = w.VBox(rows)
         self._candidate_box.add_class("kit-candidates")
 
@@ -416,33 +414,31 @@ class Comparer:
     def add_candidate(self, machine, key=None) -> str:
         """Add a machine to the candidates (ticked) and compare again; returns its key (the
         connection name, numbered when taken, unless ``key`` is given)."""
-        from ..charts.style import style_key
-
         if not hasattr(machine, "characteristic"):
             raise ParameterError("machine", machine, "a machine of dcchar.models.connections")
         if key is None:
-            base = style_key(machine).replace("/", "_")
-            key, n = base, 1
-            while key in self._base:
-                n += 1
-                key = f"{base}_{n}"
+            key = _free_key(machine, self._base)
         elif key in self._base:
             raise ParameterError("key", key, f"a key not taken by {tuple(self._base)}")
         self._base = {**self._base, key: machine}
         self._families = {}
         self._styles = dict(zip(self._base, styles_for(list(self._base.values()))))
-        cb = w.Checkbox(value=True, description=machine.label + (f" ({machine.name})" if machine.name else ""),
-                        indent=False, layout=w.Layout(width="auto"))
+        row = self._candidate_row(key, machine, self._styles[key])
+        self._candidate_box.children = tuple(self._candidate_box.children) + (row,)
+        self._coalescer.request()
+        return key
+
+    def _candidate_row(self, key, machine, style):
+        """Swatch and tick box of one candidate (kept in :attr:`candidates`)."""
+        name = machine.name or ""
+        text = machine.label + (f" ({name})" if name and machine.label not in name else "")
+        cb = w.Checkbox(value=True, description=text, indent=False, layout=w.Layout(width="auto"))
         cb.add_class("kit-candidate")
         cb.add_class("kit-candidate-" + key.replace("_", "-"))
         cb.observe(self._on_control, names="value")
         self.candidates[key] = cb
-        s = self._styles[key]
-        row = w.HBox([w.HTML(swatch_html(s.color, s.linestyle), layout=w.Layout(width="30px")), cb],
-                     layout=w.Layout(height="24px"))
-        self._candidate_box.children = tuple(self._candidate_box.children) + (row,)
-        self._coalescer.request()
-        return key
+        return w.HBox([w.HTML(swatch_html(style.color, style.linestyle), layout=w.Layout(width="30px")), cb],
+                      layout=w.Layout(height="24px"))
 
     def attach(self, panel, title: str):
         """Host a panel (e.g. :class:`~dcchar.widgets.selection_panel.SelectionPanel`) in a tab
