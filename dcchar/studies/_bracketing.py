@@ -24,9 +24,10 @@ for _a in _NONE:
 class _Evaluator:
     """Speed and shaft torque of one machine on arrays, with the supply voltage and any circuit
     values (by name, e.g. R_x, R_f, d, V_f; see :data:`dcchar.models.symbolic.CIRCUIT_PARAMETERS`) given as
-    arrays that broadcast against the armature current (settings down, currents across)."""
+    arrays that broadcast against the armature current (settings down, currents across), and
+    kphi multiplied by ``scale`` (a number or an (n, 1) array: a flux tolerance)."""
 
-    def __init__(self, machine, voltage, overrides=None, circuit=None):
+    def __init__(self, machine, voltage, overrides=None, circuit=None, *, scale=1.0):
         self.machine = machine
         self.connection = conn = machine.connection
         names = symbolic.CIRCUIT_PARAMETERS[conn]
@@ -37,6 +38,7 @@ class _Evaluator:
         self.circuit = tuple(circuit)
         self.voltage = voltage
         self.loss = (*machine.rotational_loss.kernel_parameters(), machine.stray_load)
+        self.scale = scale
 
     def _param(self, name):
         return self.voltage if name == "V" else self.circuit[self.names.index(name)]
@@ -50,7 +52,21 @@ class _Evaluator:
         ev.__dict__.update(self.__dict__)
         ev.voltage = pick(self.voltage)
         ev.circuit = tuple(pick(v) for v in self.circuit)
+        ev.scale = pick(self.scale)
         return ev
+
+    def rows(self) -> int:
+        """Number of rows of settings (1 when every parameter is a number)."""
+        n = 1
+        for v in (self.voltage, self.scale, *self.circuit):
+            if np.ndim(v):
+                n = max(n, np.shape(v)[0])
+        return n
+
+    def kphi(self, Ia, F=None):
+        """kphi at armature currents ``Ia`` (``F``: their net excitation, when known)."""
+        k = self.machine._kphi(self.excitation(Ia)[0] if F is None else F, Ia)
+        return k if (np.ndim(self.scale) == 0 and self.scale == 1.0) else k * self.scale
 
     def excitation(self, Ia):
         if self.connection == "permanent_magnet":
@@ -61,14 +77,13 @@ class _Evaluator:
 
     def speed_torque(self, Ia):
         """(speed, shaft torque) arrays; call inside ``np.errstate`` (kphi = 0 gives inf/nan)."""
-        F = self.excitation(Ia)[0]
-        kphi = self.machine._kphi(F, Ia)
-        return symbolic.speed_torque_kernel(self.connection)(Ia, kphi, self.voltage, *self.circuit, *self.loss)
+        return symbolic.speed_torque_kernel(self.connection)(Ia, self.kphi(Ia), self.voltage, *self.circuit,
+                                                             *self.loss)
 
     def full_state(self, Ia):
         """Every kernel output at ``Ia`` (arrays): the outputs of the symbolic kernels plus kphi."""
         F, If, Is, IL = self.excitation(Ia)
-        kphi = self.machine._kphi(F, Ia)
+        kphi = self.kphi(Ia, F)
         with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
             out = symbolic.output_kernel(self.connection)(Ia, kphi, self.voltage, *self.circuit, *self.loss)
         shape = np.shape(Ia)

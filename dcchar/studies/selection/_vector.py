@@ -14,51 +14,10 @@ from __future__ import annotations
 
 import numpy as np
 
-from ...models import symbolic
-from .._bracketing import _Evaluator, settling_cells
+from .._bracketing import settling_cells
 from ..control import _anderson_bjorck, _state_at_roots
 
 __all__ = []
-
-
-class ScaledEvaluator(_Evaluator):
-    """An evaluator whose kphi is multiplied by ``scale`` (scalar or (n, 1) array)."""
-
-    def __init__(self, machine, voltage, overrides=None, scale=1.0):
-        super().__init__(machine, voltage, overrides)
-        self.scale = scale
-
-    def take(self, rows):
-        ev = super().take(rows)
-        ev.__class__ = ScaledEvaluator  # the base class builds a plain evaluator
-        s = self.scale
-        ev.scale = np.asarray(s)[rows, 0] if np.ndim(s) == 2 else s
-        return ev
-
-    def kphi(self, Ia):
-        F = self.excitation(Ia)[0]
-        return self.machine._kphi(F, Ia) * self.scale
-
-    def speed_torque(self, Ia):
-        return symbolic.speed_torque_kernel(self.connection)(Ia, self.kphi(Ia), self.voltage, *self.circuit, *self.loss)
-
-    def full_state(self, Ia):
-        F, If, Is, IL = self.excitation(Ia)
-        kphi = self.machine._kphi(F, Ia) * self.scale
-        with np.errstate(all="ignore"):
-            out = symbolic.output_kernel(self.connection)(Ia, kphi, self.voltage, *self.circuit, *self.loss)
-        shape = np.shape(Ia)
-        d = {k: np.broadcast_to(v, shape) for k, v in zip(symbolic.OUTPUTS, out)}
-        d.update(field_current=np.broadcast_to(If, shape), supply_current=np.broadcast_to(IL, shape),
-                 kphi=np.broadcast_to(kphi, shape))
-        return d
-
-    def rows(self) -> int:
-        n = 1
-        for v in (self.voltage, self.scale, *self.circuit):
-            if np.ndim(v):
-                n = max(n, np.shape(v)[0])
-        return n
 
 
 def settle(ev, load_torque, breakaway, safe_speed, grid: int = 112, tracked: bool = False):
@@ -69,7 +28,7 @@ def settle(ev, load_torque, breakaway, safe_speed, grid: int = 112, tracked: boo
 
     Parameters
     ----------
-    ev : ScaledEvaluator
+    ev : dcchar.studies._bracketing._Evaluator
     load_torque : callable
         Load torque [N*m] at motor speeds [rad/s] (vectorized).
     breakaway : float

@@ -14,7 +14,8 @@ import math
 
 import numpy as np
 
-from ._vector import ScaledEvaluator, increasing_prefix, interp_rows, run_up_time, settle
+from .._bracketing import _Evaluator
+from ._vector import increasing_prefix, interp_rows, run_up_time, settle
 from .case import OPEN_FIELD_RESISTANCE
 
 __all__ = ["SampleCase"]
@@ -70,7 +71,7 @@ class SampleCase:
             ov["R_f"] = (self.Rfw + OPEN_FIELD_RESISTANCE) if (field_open and "V_f" not in self.names) else rf
         if "V_f" in self.names:
             ov["V_f"] = 0.0 * self.vf if field_open else m.field_voltage * self.vf
-        return ScaledEvaluator(m, self.voltage * voltage_fraction, ov, self.scale)
+        return _Evaluator(m, self.voltage * voltage_fraction, ov, scale=self.scale)
 
     def _memo_get(self, key, compute):
         if key not in self._memo:
