@@ -98,8 +98,7 @@ def solve_data(scenario, load_name=None) -> dict:
                    "efficiency": _json_number(p.efficiency), "mode": p.mode, "stable": bool(p.stable),
                    "settled": p is cand.point} for p in cand.operating.points]
         out["candidates"][key] = {"figures": row, "points": points, "voltage": cand.voltage,
-                                  "cautions": [{"code": c.code, "text": c.text, "reason": c.reason,
-                                                "severity": c.severity} for c in cand.cautions]}
+                                  "cautions": _cautions_json(cand.cautions)}
     return out
 
 
@@ -114,15 +113,8 @@ def solve_text(scenario, load_name=None, units=None) -> str:
             "regulation", "starting_current", "note"]
     heads, rows = display_table(comparison, units, cols)
     cells = [heads] + [[format_value(v) for v in r] for r in rows]
-    widths = [max(len(r[i]) for r in cells) for i in range(len(heads))]
-
-    def line(r):
-        return "  ".join(c.ljust(w) if i in (0, len(r) - 1) else c.rjust(w)
-                         for i, (c, w) in enumerate(zip(r, widths))).rstrip()
-
-    out = [f"{scenario.title}", f"load {name}: {scenario.load_description(name)}", "", line(cells[0]),
-           "  ".join("-" * w for w in widths)]
-    out += [line(r) for r in cells[1:]]
+    out = [f"{scenario.title}", f"load {name}: {scenario.load_description(name)}", ""]
+    out += _aligned(cells, left=(0, len(heads) - 1))
     from .models.units import display_units
 
     sp = display_units(units)["speed"]
@@ -287,25 +279,21 @@ def _run(args) -> int:
     from .files.scenario import load_scenario
 
     scenario = load_scenario(args.scenario)
+    if getattr(args, "load", None) is not None and args.load not in scenario.loads():
+        from .errors import ScenarioError
+
+        raise ScenarioError("--load", f"{args.load!r} is not allowed: expected one of {tuple(scenario.loads())}")
     if args.command == "check":
         n_m, n_l = len(scenario.machines()), len(scenario.loads())
         print(f"{args.scenario}: valid ({n_m} machine(s), {n_l} load(s); default load {scenario.default_load})")
         return EXIT_OK
     if args.command == "solve":
-        if args.load is not None and args.load not in scenario.loads():
-            from .errors import ScenarioError
-
-            raise ScenarioError("--load", f"{args.load!r} is not allowed: expected one of {tuple(scenario.loads())}")
         if args.json:
             print(json.dumps(solve_data(scenario, args.load), indent=1, allow_nan=False))
         else:
             sys.stdout.write(solve_text(scenario, args.load, args.units))
         return EXIT_OK
     if args.command == "select":
-        if args.load is not None and args.load not in scenario.loads():
-            from .errors import ScenarioError
-
-            raise ScenarioError("--load", f"{args.load!r} is not allowed: expected one of {tuple(scenario.loads())}")
         name = args.load or scenario.default_load
         scenario.requirements(name)  # no requirements: a clear message before any work
         with_tolerance = scenario.has_tolerance if args.tolerance is None else args.tolerance
